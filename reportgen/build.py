@@ -1,0 +1,200 @@
+"""Compute a job into a Document: call each calc's compute and verify, wrapped per plugin.
+
+This module runs plugins and assembles the document tree; it never renders.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import platform
+from collections.abc import Callable
+from typing import Any
+
+from . import __version__
+from .calc import CalcContext, CalcOutput, InputSpec
+from .errors import PluginError, ReportgenError, VerificationError
+from .jobfile import CalcSpec, Job
+from .model import (
+    BLOCK_TYPES,
+    Check,
+    Document,
+    Equation,
+    Figure,
+    InputRow,
+    InputsTable,
+    Quantity,
+    ResultRow,
+    Section,
+    VerificationRow,
+)
+from .plugins import PluginSet, RegisteredCalc
+from .transforms import apply_transforms
+from .units import DIMENSIONS
+
+VerifyHook = Callable[[RegisteredCalc, CalcContext, CalcOutput], Any]
+
+
+def compute_document(job: Job, plugins: PluginSet, *,
+                     verify: VerifyHook | None = None) -> Document:
+    """Run every calc of ``job`` and return the transformed document.
+
+    ``verify`` replaces the direct call of ``calc_type.verify`` (the cache uses it).
+    Raises PluginError when a plugin raises or returns malformed output, and
+    VerificationError when an independent check disagrees.
+    """
+    sections = [compute_section(spec, plugins.calcs[spec.plugin], job.info.units, verify)
+                for spec in job.calcs]
+    software = [("reportgen", "reportgen", __version__),
+                ("Python", platform.python_implementation(), platform.python_version())]
+    seen = set()
+    for spec in job.calcs:
+        reg = plugins.calcs[spec.plugin]
+        if reg.name not in seen:
+            seen.add(reg.name)
+            software.append((f"calc type {reg.name}", reg.package,
+                             reg.calc_type.version))
+    doc = Document(info=job.info, revision_history=job.revision_history,
+                   sections=tuple(sections), software=tuple(software))
+    return apply_transforms(doc)
+
+
+def calc_context(spec: CalcSpec, units: str) -> CalcContext:
+    return CalcContext(calc_id=spec.id, title=spec.title, inputs=dict(spec.inputs),
+                       given=spec.given, criteria=dict(spec.criteria),
+                       criteria_given=spec.criteria_given, units=units)
+
+
+def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
+                    verify: VerifyHook | None = None) -> Section:
+    ct = reg.calc_type
+    ctx = calc_context(spec, units)
+
+    def fail(message: str, stage: str, cause: BaseException | None = None) -> PluginError:
+        err = PluginError(message, plugin=reg.name, package=reg.package, calc=spec.id,
+                          stage=stage)
+        err.__cause__ = cause
+        return err
+
+    try:
+        out = ct.compute(ctx)
+    except ReportgenError:
+        raise
+    except Exception as exc:
+        raise fail(f"compute raised {type(exc).__name__}: {exc}", "compute", exc) from exc
+    problem = check_output(out)
+    if problem:
+        raise fail(f"compute returned malformed output: {problem}", "compute")
+    try:
+        rows = verify(reg, ctx, out) if verify else ct.verify(ctx, out)
+    except ReportgenError:
+        raise
+    except Exception as exc:
+        raise fail(f"verify raised {type(exc).__name__}: {exc}", "verify", exc) from exc
+    verification: tuple[VerificationRow, ...] | None = None
+    if rows is not None:
+        rows = tuple(rows)
+        bad = [r for r in rows if not isinstance(r, VerificationRow)]
+        if bad:
+            raise fail(f"verify returned {type(bad[0]).__name__}, not VerificationRow", "verify")
+        disagree = [r for r in rows if not r.agrees]
+        if disagree:
+            text = "; ".join(
+                f"{r.quantity}: closed form {r.closed_form:.6g}, independent {r.independent:.6g}"
+                f" (relative difference {r.rel_difference:.2e} > tolerance {r.tolerance:.1e})"
+                for r in disagree)
+            raise VerificationError(f"independent verification disagrees: {text}; a package"
+                                    " whose two methods disagree is not issued",
+                                    plugin=reg.name, package=reg.package, calc=spec.id,
+                                    stage="verify")
+        verification = rows
+    inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given))
+    blocks = (inputs_block,)
+    if spec.criteria or ct.criteria:
+        crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given)
+        if crit_rows:
+            blocks += (InputsTable(rows=crit_rows, title="Design criteria"),)
+    return Section(
+        calc_id=spec.id, plugin=reg.name, plugin_version=ct.version,
+        plugin_package=reg.package, title=spec.title, purpose=out.purpose or ct.purpose,
+        blocks=blocks + tuple(out.blocks), results=tuple(out.results),
+        checks=tuple(out.checks), verification=verification, notes=spec.notes,
+        sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
+
+
+def _input_rows(specs: tuple[InputSpec, ...], values: dict[str, Any],
+                given: frozenset[str]) -> tuple[InputRow, ...]:
+    rows = []
+    for sp in specs:
+        if sp.name not in values:
+            continue
+        value = values[sp.name]
+        source = "job file" if sp.name in given else (
+            "default" + (f" ({sp.default_note})" if sp.default_note else ""))
+        if sp.kind in ("pair", "points"):
+            flat = [v for v in _flatten(value)]
+            for i, v in enumerate(flat):
+                rows.append(InputRow(name=f"{sp.name}[{i}]", symbol=sp.symbol,
+                                     description=f"{sp.description} ({_ordinal(sp, i)})",
+                                     quantity=Quantity(value=v, dimension=sp.dimension),
+                                     source=source))
+            continue
+        rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
+                             quantity=Quantity(value=float(value), dimension=sp.dimension),
+                             source=source))
+    return tuple(rows)
+
+
+def _ordinal(sp: InputSpec, i: int) -> str:
+    if sp.kind == "pair":
+        return ("from", "to")[i]
+    return f"point {i // 2 + 1}, {'xy'[i % 2]}"
+
+
+def _flatten(value: Any):
+    if isinstance(value, (tuple, list)):
+        for v in value:
+            yield from _flatten(v)
+    else:
+        yield float(value)
+
+
+def check_output(out: Any) -> str:
+    """Why a plugin's CalcOutput is malformed, or '' when it is well formed."""
+    if not isinstance(out, CalcOutput):
+        return f"expected CalcOutput, got {type(out).__name__}"
+    for b in out.blocks:
+        if not isinstance(b, BLOCK_TYPES):
+            return f"block of type {type(b).__name__} is not a reportgen block"
+        if isinstance(b, Equation):
+            if not math.isfinite(b.result.value) or b.result.dimension not in DIMENSIONS:
+                return f"equation {b.name} has a bad result {b.result!r}"
+        if isinstance(b, Figure):
+            for p in b.panels:
+                for s in p.series:
+                    if len(s.x) != len(s.y):
+                        return f"figure {b.key}: series '{s.label}' has x and y of unequal length"
+                    if len(s.x) > 50000:
+                        return f"figure {b.key}: series '{s.label}' has {len(s.x)} points"
+    for r in out.results:
+        if not isinstance(r, ResultRow):
+            return f"result of type {type(r).__name__} is not a ResultRow"
+        q = r.quantity
+        if q.dimension not in DIMENSIONS:
+            return f"result {r.key} has unknown dimension {q.dimension!r}"
+        if not isinstance(q.value, float) or not math.isfinite(q.value):
+            return f"result {r.key} is not a finite number ({q.value!r})"
+    keys = [r.key for r in out.results]
+    if len(keys) != len(set(keys)):
+        return "duplicate result keys"
+    for c in out.checks:
+        if not isinstance(c, Check) or c.status not in ("pass", "fail", "info"):
+            return f"malformed check {c!r}"
+    ids = [c.id for c in out.checks]
+    if len(ids) != len(set(ids)):
+        return "duplicate check ids"
+    return ""
+
+
+def with_changes(doc: Document, changes: tuple[str, ...]) -> Document:
+    return dataclasses.replace(doc, changes=changes)

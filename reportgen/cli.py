@@ -1,0 +1,179 @@
+"""The command line. Only this module turns ReportgenErrors into messages and exit codes.
+
+Start-up is kept light: WeasyPrint and matplotlib are imported only when a build
+renders, never for --help, plugins, check or schema.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import traceback
+from collections.abc import Sequence
+from pathlib import Path
+
+from .errors import ExitCode, JobError, ReportgenError
+
+PROG = "reportgen"
+
+
+def _parser() -> argparse.ArgumentParser:
+    from . import __version__
+
+    p = argparse.ArgumentParser(
+        prog=PROG, description="Build vibration calculation packages (PDF + results.json)"
+        " from TOML job files.",
+        epilog="Exit codes: 0 built and every design check passes; 1 built with failing"
+        " checks; 2 invalid input or usage, nothing written; 3 plugin, verification or"
+        " render failure, nothing written.")
+    p.add_argument("--version", action="version", version=f"{PROG} {__version__}")
+    p.add_argument("--debug", action="store_true", help="show tracebacks on errors")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+
+    def common(sp: argparse.ArgumentParser) -> None:
+        sp.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                        help="show tracebacks on errors")
+
+    b = sub.add_parser("build", help="build a job file, or every *.toml job in a folder")
+    b.add_argument("target", type=Path, help="a job file (JOB.toml) or a folder of job files")
+    b.add_argument("--out", type=Path, default=Path("out"), help="output folder (default ./out)")
+    _build_flags(b)
+    common(b)
+
+    d = sub.add_parser("demo", help="build the bundled sample calc set")
+    d.add_argument("--out", type=Path, default=Path("out"), help="output folder (default ./out)")
+    d.add_argument("--jobs", type=int, default=None, help="worker processes")
+    common(d)
+
+    pl = sub.add_parser("plugins", help="list calc types, their plugin package, version and inputs")
+    common(pl)
+
+    c = sub.add_parser("check", help="validate job files without building (exit 0 or 2)")
+    c.add_argument("jobs", type=Path, nargs="+", help="job files or folders")
+    common(c)
+
+    s = sub.add_parser("schema", help="print a JSON Schema of the job format with every"
+                       " installed calc type's inputs")
+    common(s)
+
+    v = sub.add_parser("verify", help="rebuild a package's embedded job and compare results")
+    v.add_argument("packages", type=Path, nargs="+", help="package PDFs or folders of them")
+    v.add_argument("--rtol", type=float, default=1e-9, help="relative tolerance (default 1e-9)")
+    v.add_argument("--jobs", type=int, default=None, help="worker processes")
+    v.add_argument("--executor", choices=("local", "dask"), default="local")
+    v.add_argument("--scheduler", default=None, help="Dask scheduler address")
+    common(v)
+
+    e = sub.add_parser("extract", help="write a package's embedded files into a folder")
+    e.add_argument("package", type=Path)
+    e.add_argument("dir", type=Path)
+    common(e)
+
+    df = sub.add_parser("diff", help="compare two revisions (packages or job files)")
+    df.add_argument("old", type=Path)
+    df.add_argument("new", type=Path)
+    common(df)
+
+    n = sub.add_parser("new-plugin", help="scaffold a pip-installable in-house calc plugin")
+    n.add_argument("name", help="plugin name, e.g. acme_pump_base")
+    n.add_argument("--dir", type=Path, default=None, help="where to write it (default ./NAME)")
+    common(n)
+    return p
+
+
+def _build_flags(b: argparse.ArgumentParser) -> None:
+    b.add_argument("--force", action="store_true",
+                   help="replace an existing package of the same calc number and revision")
+    b.add_argument("--final", action="store_true",
+                   help="refuse unless checked, approved, verified and every check passes")
+    b.add_argument("--html", action="store_true", help="also write the self-contained HTML")
+    b.add_argument("--no-cache", action="store_true", help="do not read or write the asset cache")
+    b.add_argument("--jobs", type=int, default=None,
+                   help="worker processes (default: the number of cores)")
+    b.add_argument("--template-dir", type=Path, default=None,
+                   help="a firm's template folder (overrides [package] template_dir)")
+    b.add_argument("--executor", choices=("local", "dask"), default="local",
+                   help="where folder builds run (dask needs reportgen[dask])")
+    b.add_argument("--scheduler", default=None, help="Dask scheduler address")
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    parser = _parser()
+    args = parser.parse_args(argv)
+    if not args.command:
+        parser.print_help()
+        return ExitCode.INVALID_INPUT
+    debug = bool(getattr(args, "debug", False))
+    try:
+        return int(_dispatch(args))
+    except ReportgenError as exc:
+        if debug:
+            traceback.print_exc()
+        _print_error(exc)
+        return int(exc.exit_code)
+    except KeyboardInterrupt:
+        print(f"{PROG}: interrupted; nothing was written under a final name", file=sys.stderr)
+        return 130
+    except Exception as exc:  # a bug: say so plainly, traceback only on request
+        if debug:
+            traceback.print_exc()
+        print(f"{PROG}: internal error: {type(exc).__name__}: {exc}"
+              " (run with --debug for the traceback)", file=sys.stderr)
+        return int(ExitCode.FAILURE)
+
+
+def _print_error(exc: ReportgenError) -> None:
+    if isinstance(exc, JobError):
+        for problem in exc.problems:
+            print(f"error: {str(problem).lstrip(': ')}", file=sys.stderr)
+        n = len(exc.problems)
+        if n > 1:
+            print(f"{n} problems; nothing was written", file=sys.stderr)
+        return
+    print(f"error: {exc}", file=sys.stderr)
+
+
+def _dispatch(args: argparse.Namespace) -> int:
+    cmd = args.command
+    if cmd == "plugins":
+        from .commands import list_plugins
+
+        return list_plugins()
+    if cmd == "check":
+        from .commands import check_jobs
+
+        return check_jobs(args.jobs)
+    if cmd == "schema":
+        from .commands import print_schema
+
+        return print_schema()
+    if cmd in ("build", "demo"):
+        from .commands import build_command
+
+        return build_command(args)
+    if cmd == "verify":
+        from .verify import verify_command
+
+        return verify_command(args)
+    if cmd == "extract":
+        from .verify import extract_command
+
+        return extract_command(args.package, args.dir)
+    if cmd == "diff":
+        from .diff import diff_command
+
+        return diff_command(args.old, args.new)
+    if cmd == "new-plugin":
+        from .scaffold import new_plugin
+
+        return new_plugin(args.name, args.dir)
+    raise JobError(f"unknown command {cmd}")
+
+
+def default_workers() -> int:
+    return max(1, os.cpu_count() or 1)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

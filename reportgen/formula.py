@@ -1,0 +1,210 @@
+"""Formulas: one arithmetic expression, evaluated once, printed twice.
+
+A plugin writes ``sqrt(k/m)`` with named operands; :func:`evaluate` computes the
+result from those operands, and :func:`to_latex` prints the symbolic form and the
+substituted form from the same expression tree. A small, safe grammar (numbers,
+names, + - * / **, a few functions) keeps formulas checkable by hand.
+"""
+
+from __future__ import annotations
+
+import ast
+import math
+from collections.abc import Callable, Mapping
+from functools import lru_cache
+
+from .units import format_number
+
+__all__ = ["FormulaError", "evaluate", "names_in", "symbol_latex", "to_latex"]
+
+CONSTANTS = {"pi": math.pi}
+FUNCTIONS: dict[str, Callable[..., float]] = {
+    "sqrt": math.sqrt, "exp": math.exp, "ln": math.log, "log10": math.log10,
+    "sin": math.sin, "cos": math.cos, "tan": math.tan, "atan": math.atan,
+    "atan2": math.atan2, "abs": abs, "sinh": math.sinh, "cosh": math.cosh,
+    "min": min, "max": max, "acos": math.acos, "asin": math.asin,
+}
+_GREEK = {
+    "alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta", "kappa", "lambda",
+    "mu", "nu", "xi", "pi", "rho", "sigma", "tau", "phi", "chi", "psi", "omega", "Gamma",
+    "Delta", "Theta", "Lambda", "Phi", "Psi", "Omega",
+}
+_FUNC_LATEX = {
+    "exp": r"\exp", "ln": r"\ln", "log10": r"\log_{10}", "sin": r"\sin", "cos": r"\cos",
+    "tan": r"\tan", "atan": r"\arctan", "sinh": r"\sinh", "cosh": r"\cosh", "min": r"\min",
+    "max": r"\max", "acos": r"\arccos", "asin": r"\arcsin",
+}
+
+
+class FormulaError(ValueError):
+    """An expression outside the formula grammar, or one that cannot be evaluated."""
+
+
+@lru_cache(maxsize=512)
+def _parse(expression: str) -> ast.expr:
+    try:
+        tree = ast.parse(expression, mode="eval").body
+    except SyntaxError as exc:
+        raise FormulaError(f"formula {expression!r} is not valid: {exc.msg}") from None
+    for node in ast.walk(tree):
+        ok = isinstance(node, (ast.BinOp, ast.UnaryOp, ast.Constant, ast.Name, ast.Call,
+                               ast.Load, ast.Add, ast.Sub, ast.Mult, ast.Div, ast.Pow,
+                               ast.USub, ast.UAdd))
+        if isinstance(node, ast.Constant) and not isinstance(node.value, (int, float)):
+            ok = False
+        if isinstance(node, ast.Call) and (not isinstance(node.func, ast.Name)
+                                           or node.func.id not in FUNCTIONS or node.keywords):
+            ok = False
+        if not ok:
+            raise FormulaError(f"formula {expression!r} uses {type(node).__name__},"
+                               " which the formula grammar does not allow")
+    return tree
+
+
+def names_in(expression: str) -> set[str]:
+    """Operand names an expression needs (constants and functions excluded)."""
+    tree = _parse(expression)
+    called = {n.func.id for n in ast.walk(tree) if isinstance(n, ast.Call)}
+    return {n.id for n in ast.walk(tree) if isinstance(n, ast.Name)} - called - set(CONSTANTS)
+
+
+def evaluate(expression: str, operands: Mapping[str, float]) -> float:
+    """Evaluate ``expression`` with ``operands`` (plain floats)."""
+    tree = _parse(expression)
+
+    def ev(node: ast.expr) -> float:
+        if isinstance(node, ast.Constant):
+            return float(node.value)
+        if isinstance(node, ast.Name):
+            if node.id in operands:
+                return float(operands[node.id])
+            if node.id in CONSTANTS:
+                return CONSTANTS[node.id]
+            raise FormulaError(f"formula {expression!r} needs operand {node.id!r}")
+        if isinstance(node, ast.UnaryOp):
+            v = ev(node.operand)
+            return -v if isinstance(node.op, ast.USub) else v
+        if isinstance(node, ast.BinOp):
+            a, b = ev(node.left), ev(node.right)
+            op = node.op
+            if isinstance(op, ast.Add):
+                return a + b
+            if isinstance(op, ast.Sub):
+                return a - b
+            if isinstance(op, ast.Mult):
+                return a * b
+            if isinstance(op, ast.Div):
+                return a / b
+            return a**b
+        assert isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
+        return float(FUNCTIONS[node.func.id](*(ev(a) for a in node.args)))
+
+    try:
+        value = ev(tree)
+    except (ZeroDivisionError, ValueError, OverflowError) as exc:
+        raise FormulaError(f"formula {expression!r} cannot be evaluated: {exc}") from None
+    if isinstance(value, complex) or not math.isfinite(value):
+        raise FormulaError(f"formula {expression!r} gives a non-finite value")
+    return value
+
+
+def symbol_latex(name: str) -> str:
+    """``omega_n`` -> ``\\omega_{n}``; ``delta_st`` -> ``\\delta_{\\mathrm{st}}``."""
+    base, _, sub = name.partition("_")
+    head = "\\" + base if base in _GREEK else base
+    if len(base) > 1 and base not in _GREEK:
+        head = r"\mathrm{" + base + "}"
+    if not sub:
+        return head
+    parts = sub.split("_")
+    subs = ",".join(("\\" + p) if p in _GREEK else (p if len(p) == 1 or p.isdigit()
+                                                    else r"\mathrm{" + p + "}") for p in parts)
+    return f"{head}_{{{subs}}}"
+
+
+_PREC = {ast.Add: 1, ast.Sub: 1, ast.Mult: 2, ast.Div: 2, ast.Pow: 4}
+
+
+def _prec(node: ast.expr) -> int:
+    if isinstance(node, ast.BinOp):
+        if isinstance(node.op, ast.Div):
+            return 5  # a fraction is self-delimiting
+        return _PREC[type(node.op)]
+    if isinstance(node, ast.UnaryOp):
+        return 3
+    return 6
+
+
+def to_latex(expression: str, values: Mapping[str, float] | None = None,
+             symbols: Mapping[str, str] | None = None, digits: int = 6) -> str:
+    """LaTeX of ``expression``: symbolic, or with ``values`` substituted."""
+    tree = _parse(expression)
+    symbols = symbols or {}
+
+    def paren(s: str) -> str:
+        return r"\left(" + s + r"\right)"
+
+    def tex(node: ast.expr) -> str:
+        if isinstance(node, ast.Constant):
+            return _num(float(node.value), digits)
+        if isinstance(node, ast.Name):
+            if values is not None and node.id in values:
+                text = _num(float(values[node.id]), digits)
+                return paren(text) if text.startswith("-") else text
+            if node.id == "pi":
+                return r"\pi"
+            return symbols.get(node.id) or symbol_latex(node.id)
+        if isinstance(node, ast.UnaryOp):
+            inner = tex(node.operand)
+            if _prec(node.operand) < 3:
+                inner = paren(inner)
+            return ("-" if isinstance(node.op, ast.USub) else "+") + inner
+        if isinstance(node, ast.BinOp):
+            op = node.op
+            if isinstance(op, ast.Div):
+                return r"\dfrac{" + tex(node.left) + "}{" + tex(node.right) + "}"
+            left, right = tex(node.left), tex(node.right)
+            p = _PREC[type(op)]
+            if isinstance(op, ast.Pow):
+                if _prec(node.left) <= 5 or left.startswith("-"):
+                    left = paren(left)
+                return "{" + left + "}^{" + right + "}"
+            if _prec(node.left) < p:
+                left = paren(left)
+            if _prec(node.right) < p or (isinstance(op, ast.Sub) and _prec(node.right) == p):
+                right = paren(right)
+            if isinstance(op, ast.Add):
+                return f"{left} + {right}"
+            if isinstance(op, ast.Sub):
+                return f"{left} - {right}"
+            numeric_right = isinstance(node.right, ast.Constant) or (
+                values is not None and _leaf_value(node.right, values))
+            numeric_left = isinstance(node.left, ast.Constant) or (
+                values is not None and _leaf_value(node.left, values))
+            if numeric_right or (numeric_left and values is not None):
+                return f"{left} \\times {right}"
+            return f"{left}\\,{right}"
+        assert isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
+        fname = node.func.id
+        args = [tex(a) for a in node.args]
+        if fname == "sqrt":
+            return r"\sqrt{" + args[0] + "}"
+        if fname == "abs":
+            return r"\left|" + args[0] + r"\right|"
+        if fname == "atan2":
+            return r"\operatorname{atan2}" + paren(", ".join(args))
+        return _FUNC_LATEX[fname] + paren(", ".join(args))
+
+    return tex(tree)
+
+
+def _leaf_value(node: ast.expr, values: Mapping[str, float]) -> bool:
+    return isinstance(node, ast.Name) and node.id in values
+
+
+def _num(value: float, digits: int) -> str:
+    text = format_number(value, digits)
+    if "e" in text:
+        mant, exp = text.split("e")
+        return f"{mant} \\times 10^{{{int(exp)}}}"
+    return text

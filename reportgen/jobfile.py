@@ -1,0 +1,423 @@
+"""Load and validate a TOML job file into a typed :class:`Job` with SI inputs.
+
+Every problem found is collected (not only the first) and raised together as a
+:class:`~reportgen.errors.JobError` naming the file, the calc id and the field.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import difflib
+import math
+import re
+import tomllib
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .calc import InputSpec
+from .errors import JobError, Problem
+from .model import PackageInfo, RevisionEntry
+from .plugins import PluginSet
+from .units import DIMENSIONS, UnitProblem, parse_quantity
+
+MAX_JOB_BYTES = 1_000_000
+MAX_CALCS = 200
+MAX_TEXT = 4000
+_ID = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
+_SAFE_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")
+
+PACKAGE_KEYS = {
+    "title": True, "client": False, "project": False, "job_number": True,
+    "calc_number": True, "revision": True, "date": False, "units": False,
+    "prepared_by": False, "prepared_date": False, "checked_by": False, "checked_date": False,
+    "approved_by": False, "approved_date": False, "revision_history": False,
+    "template_dir": False, "firm": False, "previous_package": False,
+}
+CALC_KEYS = {"id", "plugin", "title", "notes", "inputs", "criteria"}
+
+
+@dataclass(frozen=True, kw_only=True)
+class CalcSpec:
+    id: str
+    plugin: str
+    title: str
+    notes: str
+    inputs: Mapping[str, Any]  # SI values, defaults filled
+    given: frozenset[str]
+    criteria: Mapping[str, Any]
+    criteria_given: frozenset[str]
+    raw_inputs: Mapping[str, Any]
+    raw_criteria: Mapping[str, Any]
+
+
+@dataclass(frozen=True, kw_only=True)
+class Job:
+    path: Path
+    source: bytes
+    info: PackageInfo
+    revision_history: tuple[RevisionEntry, ...]
+    calcs: tuple[CalcSpec, ...]
+    template_dir: Path | None = None
+    previous_package: Path | None = None
+    raw: Mapping[str, Any] = field(default_factory=dict)
+
+    @property
+    def stem(self) -> str:
+        return f"{self.info.calc_number}-{self.info.revision}"
+
+    @property
+    def folder(self) -> Path:
+        return self.path.parent
+
+
+def _nearest(word: str, options: list[str]) -> str:
+    close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
+    return f" (did you mean '{close[0]}'?)" if close else ""
+
+
+def read_job_bytes(path: Path) -> bytes:
+    try:
+        size = path.stat().st_size
+    except OSError as exc:
+        raise JobError(Problem(str(path), f"cannot read the job file: {exc.strerror}")) from None
+    if size > MAX_JOB_BYTES:
+        raise JobError(Problem(str(path), f"job file is {size} bytes; the limit is"
+                                          f" {MAX_JOB_BYTES} bytes"))
+    try:
+        return path.read_bytes()
+    except OSError as exc:
+        raise JobError(Problem(str(path), f"cannot read the job file: {exc.strerror}")) from None
+
+
+def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = None) -> Job:
+    """Read, parse and validate a job file. Raises JobError with every problem."""
+    path = Path(path)
+    fname = str(path)
+    data_bytes = read_job_bytes(path) if source is None else source
+    try:
+        text = data_bytes.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise JobError(Problem(fname, f"job file is not UTF-8 text (byte {exc.start})")) from None
+    try:
+        raw = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise JobError(Problem(fname, f"TOML syntax error: {exc}")) from None
+    problems: list[Problem] = []
+    v = _Validator(fname, problems)
+    for key in raw:
+        if key not in ("package", "calc"):
+            v.add(f"unknown top-level table '{key}'{_nearest(key, ['package', 'calc'])};"
+                  " expected [package] and [[calc]]", field=key)
+    pkg = raw.get("package")
+    if not isinstance(pkg, dict):
+        v.add("missing [package] table (title, job_number, calc_number, revision ...)",
+              field="package")
+        pkg = {}
+    info, history, template_dir, previous = v.package(pkg, path)
+    calcs_raw = raw.get("calc", [])
+    if not isinstance(calcs_raw, list) or not all(isinstance(c, dict) for c in calcs_raw):
+        v.add("'calc' must be an array of tables: write each calc as [[calc]]", field="calc")
+        calcs_raw = []
+    if not calcs_raw and "calc" not in raw:
+        v.add("the job has no [[calc]] tables; a package needs at least one calc",
+              field="calc")
+    if len(calcs_raw) > MAX_CALCS:
+        v.add(f"the job has {len(calcs_raw)} calcs; the limit is {MAX_CALCS}", field="calc")
+        calcs_raw = []
+    calcs: list[CalcSpec] = []
+    seen: dict[str, int] = {}
+    for index, c in enumerate(calcs_raw):
+        spec = v.calc(c, index, plugins, seen)
+        if spec is not None:
+            calcs.append(spec)
+    if problems:
+        raise JobError(problems)
+    assert info is not None
+    return Job(path=path, source=data_bytes, info=info, revision_history=history,
+               calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
+               raw=raw)
+
+
+class _Validator:
+    def __init__(self, fname: str, problems: list[Problem]):
+        self.fname = fname
+        self.problems = problems
+
+    def add(self, message: str, *, calc: str = "", field: str = "") -> None:
+        self.problems.append(Problem(self.fname, message, calc, field))
+
+    # ------------------------------------------------------------ package
+
+    def _text(self, table: Mapping[str, Any], key: str, where: str, required: bool,
+              calc: str = "") -> str:
+        value = table.get(key, "")
+        if key not in table and required:
+            self.add(f"required field '{key}' is missing", calc=calc, field=f"{where}{key}")
+            return ""
+        if isinstance(value, (_dt.date, _dt.datetime)):
+            value = value.isoformat()
+        if not isinstance(value, str):
+            self.add(f"expected text, found {type(value).__name__} {value!r}", calc=calc,
+                     field=f"{where}{key}")
+            return ""
+        if len(value) > MAX_TEXT:
+            self.add(f"text is {len(value)} characters; the limit is {MAX_TEXT}", calc=calc,
+                     field=f"{where}{key}")
+            return ""
+        if required and not value.strip():
+            self.add(f"required field '{key}' is empty", calc=calc, field=f"{where}{key}")
+        return value
+
+    def _date(self, table: Mapping[str, Any], key: str, where: str) -> str:
+        value = table.get(key)
+        if value is None or value == "":
+            return ""
+        if isinstance(value, _dt.datetime):
+            value = value.date()
+        if isinstance(value, _dt.date):
+            return value.isoformat()
+        if isinstance(value, str):
+            try:
+                return _dt.date.fromisoformat(value).isoformat()
+            except ValueError:
+                pass
+        self.add(f"expected an ISO date such as \"2026-12-01\", found {value!r}",
+                 field=f"{where}{key}")
+        return ""
+
+    def package(self, pkg: Mapping[str, Any], path: Path):
+        for key in pkg:
+            if key not in PACKAGE_KEYS:
+                self.add(f"unknown field '{key}'{_nearest(key, list(PACKAGE_KEYS))}",
+                         field=f"package.{key}")
+        t = {k: self._text(pkg, k, "package.", req) for k, req in PACKAGE_KEYS.items()
+             if k not in ("revision_history", "date", "prepared_date", "checked_date",
+                          "approved_date", "units", "template_dir", "previous_package")}
+        for key in ("calc_number", "revision"):
+            if t[key] and not _SAFE_NAME.match(t[key]):
+                self.add(f"'{t[key]}' cannot name a file: use letters, digits, '.', '_' or"
+                         " '-' (at most 64)", field=f"package.{key}")
+        date = self._date(pkg, "date", "package.")
+        if "date" not in pkg:
+            self.add("required field 'date' is missing: the ISO date of this revision",
+                     field="package.date")
+        dates = {k: self._date(pkg, k, "package.")
+                 for k in ("prepared_date", "checked_date", "approved_date")}
+        units = pkg.get("units", "SI")
+        if units not in ("SI", "US"):
+            self.add(f"expected \"SI\" or \"US\", found {units!r}", field="package.units")
+            units = "SI"
+        history: list[RevisionEntry] = []
+        hist_raw = pkg.get("revision_history", [])
+        if not isinstance(hist_raw, list):
+            self.add("expected an array of tables [[package.revision_history]]",
+                     field="package.revision_history")
+            hist_raw = []
+        for i, h in enumerate(hist_raw):
+            where = f"package.revision_history[{i}]."
+            if not isinstance(h, dict):
+                self.add("expected a table with revision, date and description",
+                         field=where.rstrip("."))
+                continue
+            for key in h:
+                if key not in ("revision", "date", "description", "by"):
+                    self.add(f"unknown field '{key}'"
+                             f"{_nearest(key, ['revision', 'date', 'description', 'by'])}",
+                             field=where + key)
+            history.append(RevisionEntry(
+                revision=self._text(h, "revision", where, True),
+                date=self._date(h, "date", where),
+                description=self._text(h, "description", where, True),
+                by=self._text(h, "by", where, False)))
+        if t["revision"] and history and t["revision"] not in {h.revision for h in history}:
+            self.add(f"the revision history has no entry for the current revision"
+                     f" '{t['revision']}'", field="package.revision_history")
+        if not history and t["revision"]:
+            history.append(RevisionEntry(revision=t["revision"], date=date,
+                                         description="Issue"))
+        template_dir = self._folder(pkg, "template_dir", path)
+        previous = None
+        if pkg.get("previous_package"):
+            p = pkg["previous_package"]
+            if not isinstance(p, str):
+                self.add("expected a path to the previous revision's PDF",
+                         field="package.previous_package")
+            else:
+                previous = (path.parent / p)
+                if not previous.is_file():
+                    self.add(f"previous package '{p}' not found beside the job file",
+                             field="package.previous_package")
+        info = PackageInfo(
+            title=t["title"], job_number=t["job_number"], calc_number=t["calc_number"],
+            revision=t["revision"], date=date, client=t["client"], project=t["project"],
+            units=units, prepared_by=t["prepared_by"], checked_by=t["checked_by"],
+            approved_by=t["approved_by"], firm=t["firm"], **dates)
+        return info, tuple(history), template_dir, previous
+
+    def _folder(self, pkg: Mapping[str, Any], key: str, path: Path) -> Path | None:
+        value = pkg.get(key)
+        if value is None:
+            return None
+        if not isinstance(value, str) or not value.strip():
+            self.add("expected a folder path relative to the job file", field=f"package.{key}")
+            return None
+        folder = (path.parent / value).resolve()
+        if not folder.is_dir():
+            self.add(f"folder '{value}' not found beside the job file", field=f"package.{key}")
+            return None
+        return folder
+
+    # ------------------------------------------------------------ calcs
+
+    def calc(self, c: Mapping[str, Any], index: int, plugins: PluginSet,
+             seen: dict[str, int]) -> CalcSpec | None:
+        cid = c.get("id")
+        label = cid if isinstance(cid, str) and cid else f"#{index + 1}"
+        before = len(self.problems)
+        for key in c:
+            if key not in CALC_KEYS:
+                self.add(f"unknown field '{key}'{_nearest(key, sorted(CALC_KEYS))}",
+                         calc=label, field=key)
+        if not isinstance(cid, str) or not cid:
+            self.add("required field 'id' is missing", calc=label, field="id")
+        elif not _ID.match(cid) or len(cid) > 64:
+            self.add(f"id {cid!r} must be lowercase letters, digits and single '-'"
+                     " (at most 64)", calc=label, field="id")
+        elif cid in seen:
+            self.add(f"duplicate calc id '{cid}' (calc #{seen[cid] + 1} has it too)",
+                     calc=label, field="id")
+        else:
+            seen[cid] = index
+        title = self._text(c, "title", "", True, calc=label)
+        notes = self._text(c, "notes", "", False, calc=label)
+        plugin = c.get("plugin")
+        reg = None
+        if not isinstance(plugin, str) or not plugin:
+            self.add("required field 'plugin' is missing; known calc types: "
+                     + ", ".join(plugins.names()), calc=label, field="plugin")
+        else:
+            reg = plugins.get(plugin)
+            if reg is None:
+                broken = [b for b in plugins.broken if b.plugin == plugin]
+                extra = f"; that plugin failed to load: {broken[0].error}" if broken else ""
+                self.add(f"unknown calc type '{plugin}'{_nearest(plugin, plugins.names())};"
+                         f" known calc types: {', '.join(plugins.names()) or 'none'}{extra}",
+                         calc=label, field="plugin")
+        inputs_raw = c.get("inputs", {})
+        criteria_raw = c.get("criteria", {})
+        for key, val in (("inputs", inputs_raw), ("criteria", criteria_raw)):
+            if not isinstance(val, dict):
+                self.add(f"expected a table [calc.{key}]", calc=label, field=key)
+        if not isinstance(inputs_raw, dict):
+            inputs_raw = {}
+        if not isinstance(criteria_raw, dict):
+            criteria_raw = {}
+        if reg is None:
+            return None
+        ct = reg.calc_type
+        inputs, given = self._values(inputs_raw, ct.inputs, label, "inputs")
+        criteria, cgiven = self._values(criteria_raw, ct.criteria, label, "criteria")
+        if len(self.problems) == before:
+            try:
+                cross = list(ct.validate(inputs, given, criteria))
+            except Exception as exc:
+                from .errors import PluginError
+
+                raise PluginError(f"validate raised {type(exc).__name__}: {exc}",
+                                  plugin=reg.plugin, package=reg.package, calc=label,
+                                  stage="validate") from exc
+            for fld, msg in cross:
+                self.add(msg, calc=label, field=fld)
+        if len(self.problems) != before:
+            return None
+        return CalcSpec(id=cid, plugin=plugin, title=title, notes=notes, inputs=inputs,
+                        given=given, criteria=criteria, criteria_given=cgiven,
+                        raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw))
+
+    def _values(self, raw: Mapping[str, Any], specs: tuple[InputSpec, ...], calc: str,
+                table: str) -> tuple[dict[str, Any], frozenset[str]]:
+        by_name = {s.name: s for s in specs}
+        out: dict[str, Any] = {}
+        for key in raw:
+            if key not in by_name:
+                known = ", ".join(sorted(by_name)) or "none"
+                self.add(f"unknown {table[:-1] if table == 'inputs' else 'criterion'}"
+                         f" '{key}'{_nearest(key, list(by_name))}; this calc type accepts:"
+                         f" {known}", calc=calc, field=f"{table}.{key}")
+        for spec in specs:
+            fld = f"{table}.{spec.name}"
+            if spec.name not in raw:
+                if spec.default is not None:
+                    out[spec.name] = spec.default
+                elif spec.required:
+                    self.add(f"required {table[:-1] if table == 'inputs' else 'criterion'}"
+                             f" '{spec.name}' ({spec.description}, {_example(spec)}) is missing",
+                             calc=calc, field=fld)
+                continue
+            value = self._one(raw[spec.name], spec, calc, fld)
+            if value is not None:
+                out[spec.name] = value
+        return out, frozenset(k for k in raw if k in by_name)
+
+    def _one(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> Any:
+        try:
+            if spec.kind == "integer":
+                if isinstance(raw, bool) or not isinstance(raw, int):
+                    raise UnitProblem(f"expected a whole number, found {raw!r}")
+                value: Any = int(raw)
+                self._range(float(value), spec)
+                return value
+            if spec.kind == "pair":
+                if not isinstance(raw, list) or len(raw) != 2:
+                    raise UnitProblem(f"expected a list of two values such as"
+                                      f" [\"{_example(spec, 1)}\", \"{_example(spec, 2)}\"],"
+                                      f" found {raw!r}")
+                pair = tuple(parse_quantity(r, spec.dimension) for r in raw)
+                for p in pair:
+                    self._range(p, spec)
+                if not pair[0] < pair[1]:
+                    raise UnitProblem("the first value must be smaller than the second")
+                return pair
+            if spec.kind == "points":
+                if not isinstance(raw, list) or not raw or len(raw) > 1000 or not all(
+                        isinstance(p, list) and len(p) == 2 for p in raw):
+                    raise UnitProblem(f"expected a list of [x, y] pairs such as"
+                                      f" [[\"0 m\", \"0 m\"], [\"1.2 m\", \"0 m\"]], found"
+                                      f" {_short(raw)}")
+                return tuple(tuple(parse_quantity(v, spec.dimension) for v in p) for p in raw)
+            value = parse_quantity(raw, spec.dimension)
+            self._range(value, spec)
+            return value
+        except UnitProblem as exc:
+            self.add(str(exc), calc=calc, field=fld)
+            return None
+
+    @staticmethod
+    def _range(value: float, spec: InputSpec) -> None:
+        if math.isnan(value) or math.isinf(value):
+            raise UnitProblem(f"expected a finite value, found {value}")
+        unit = DIMENSIONS[spec.dimension].si_label
+        if spec.positive and value <= 0:
+            raise UnitProblem(f"must be greater than zero, found {value:g} {unit}".rstrip())
+        if spec.minimum is not None and value < spec.minimum:
+            raise UnitProblem(f"must be at least {spec.minimum:g} {unit}, found"
+                              f" {value:g} {unit}".replace("  ", " "))
+        if spec.maximum is not None and value > spec.maximum:
+            raise UnitProblem(f"must be at most {spec.maximum:g} {unit}, found"
+                              f" {value:g} {unit}".replace("  ", " "))
+
+
+def _example(spec: InputSpec, n: int = 1) -> str:
+    dim = DIMENSIONS[spec.dimension]
+    if spec.kind == "integer":
+        return "a whole number"
+    if dim.name == "dimensionless":
+        return "a plain number"
+    return f"for example \"{n} {dim.example.split()[0]}\"" if n == 1 else f"{n} {dim.example.split()[0]}"
+
+
+def _short(raw: Any) -> str:
+    text = repr(raw)
+    return text if len(text) < 80 else text[:77] + "..."

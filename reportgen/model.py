@@ -1,0 +1,335 @@
+"""The document model: a typed, immutable, renderer-agnostic tree of a calc package.
+
+Plugins build blocks; transforms return new trees; renderers only translate.
+Every node is a frozen dataclass and serialises to JSON (:func:`to_json`).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass, field
+from typing import Any, Literal, Union
+
+MODEL_VERSION = 1
+
+Status = Literal["pass", "fail", "info"]
+_frozen = dict(frozen=True, kw_only=True, slots=True)
+
+
+@dataclass(**_frozen)
+class Quantity:
+    """An SI value with its dimension name (see :mod:`reportgen.units`)."""
+
+    value: float
+    dimension: str = "dimensionless"
+
+
+# ---------------------------------------------------------------- blocks
+
+
+@dataclass(**_frozen)
+class InputRow:
+    name: str
+    symbol: str  # LaTeX-free plain symbol text, e.g. "m", "ζ"
+    description: str
+    quantity: Quantity
+    source: str  # "job file", "default", "derived" ...
+
+
+@dataclass(**_frozen)
+class InputsTable:
+    rows: tuple[InputRow, ...]
+    title: str = "Inputs"
+
+
+@dataclass(**_frozen)
+class Assumptions:
+    items: tuple[str, ...]
+    title: str = "Assumptions"
+
+
+@dataclass(**_frozen)
+class Equation:
+    """One evaluated formula.
+
+    ``expression`` is an arithmetic expression over ``operands`` (names to SI
+    quantities); ``result`` was computed from exactly those operands by
+    :func:`reportgen.formula.evaluate`, so the printed substitution reproduces
+    the printed result.
+    """
+
+    name: str  # result name, e.g. "omega_n"
+    expression: str  # e.g. "sqrt(k/m)"
+    operands: tuple[tuple[str, float], ...]  # SI values, in the expression's order
+    result: Quantity
+    description: str = ""
+    result_key: str = ""  # key in the calc's results, if it is one
+
+
+@dataclass(**_frozen)
+class ResultRow:
+    key: str
+    symbol: str
+    description: str
+    quantity: Quantity
+    key_result: bool = False
+
+
+@dataclass(**_frozen)
+class ResultsTable:
+    rows: tuple[ResultRow, ...]
+    title: str = "Results"
+
+
+@dataclass(**_frozen)
+class Check:
+    """A design check: ``value`` compared with ``limit`` by ``comparison``."""
+
+    id: str
+    description: str
+    status: Status
+    value: Quantity | None = None
+    limit: Quantity | None = None
+    comparison: str = ""  # "<=", ">=", "<", ">", "outside", "" for info
+    note: str = ""
+
+
+@dataclass(**_frozen)
+class Series:
+    x: tuple[float, ...]
+    y: tuple[float, ...]
+    label: str = ""
+    style: Literal["line", "dashed", "dotted", "points"] = "line"
+    emphasis: bool = False
+
+
+@dataclass(**_frozen)
+class Marker:
+    """A vertical line (``y`` is None) or a labelled point."""
+
+    x: float
+    y: float | None = None
+    label: str = ""
+
+
+@dataclass(**_frozen)
+class Band:
+    x_low: float
+    x_high: float
+    label: str = ""
+
+
+@dataclass(**_frozen)
+class Panel:
+    series: tuple[Series, ...]
+    y_label: str
+    y_scale: Literal["linear", "log"] = "linear"
+    markers: tuple[Marker, ...] = ()
+    bands: tuple[Band, ...] = ()
+    hlines: tuple[tuple[float, str], ...] = ()
+    y_range: tuple[float, float] | None = None
+
+
+@dataclass(**_frozen)
+class Figure:
+    """A declarative plot: panels stacked vertically, sharing the x axis."""
+
+    key: str
+    caption: str
+    alt: str
+    x_label: str
+    panels: tuple[Panel, ...]
+    x_scale: Literal["linear", "log"] = "linear"
+    x_range: tuple[float, float] | None = None
+
+
+@dataclass(**_frozen)
+class Paragraph:
+    text: str
+    title: str = ""
+
+
+@dataclass(**_frozen)
+class Note:
+    text: str
+
+
+@dataclass(**_frozen)
+class Caution:
+    text: str
+
+
+@dataclass(**_frozen)
+class Table:
+    """A plain table of text cells (for example the mount-load table)."""
+
+    title: str
+    header: tuple[str, ...]
+    rows: tuple[tuple[str, ...], ...]
+
+
+@dataclass(**_frozen)
+class Reference:
+    text: str
+
+
+Block = Union[
+    InputsTable, Assumptions, Equation, ResultsTable, Check, Figure, Paragraph, Note,
+    Caution, Table, Reference,
+]
+BLOCK_TYPES: tuple[type, ...] = (
+    InputsTable, Assumptions, Equation, ResultsTable, Check, Figure, Paragraph, Note,
+    Caution, Table, Reference,
+)
+
+
+# ---------------------------------------------------------------- document
+
+
+@dataclass(**_frozen)
+class VerificationRow:
+    quantity: str
+    closed_form: float
+    independent: float
+    tolerance: float  # relative
+    method: str
+    abs_tolerance: float = 0.0
+    unit: str = "dimensionless"
+
+    @property
+    def rel_difference(self) -> float:
+        scale = abs(self.closed_form)
+        diff = abs(self.independent - self.closed_form)
+        if scale == 0:
+            return 0.0 if diff == 0 else math.inf
+        return diff / scale
+
+    @property
+    def agrees(self) -> bool:
+        diff = abs(self.independent - self.closed_form)
+        return diff <= max(self.tolerance * abs(self.closed_form), self.abs_tolerance)
+
+
+@dataclass(**_frozen)
+class Source:
+    """A published source a plugin's method follows."""
+
+    key: str
+    citation: str
+
+
+@dataclass(**_frozen)
+class Section:
+    calc_id: str
+    plugin: str
+    plugin_version: str
+    plugin_package: str
+    title: str
+    purpose: str
+    blocks: tuple[Block, ...]
+    results: tuple[ResultRow, ...]
+    checks: tuple[Check, ...]
+    verification: tuple[VerificationRow, ...] | None  # None: not independently verified
+    notes: str = ""
+    number: str = ""
+    sources: tuple[Source, ...] = ()
+    verification_cases: tuple[str, ...] = ()
+
+
+@dataclass(**_frozen)
+class RevisionEntry:
+    revision: str
+    date: str
+    description: str
+    by: str = ""
+
+
+@dataclass(**_frozen)
+class PackageInfo:
+    title: str
+    job_number: str
+    calc_number: str
+    revision: str
+    date: str
+    client: str = ""
+    project: str = ""
+    units: Literal["SI", "US"] = "SI"
+    prepared_by: str = ""
+    prepared_date: str = ""
+    checked_by: str = ""
+    checked_date: str = ""
+    approved_by: str = ""
+    approved_date: str = ""
+    firm: str = ""
+
+
+@dataclass(**_frozen)
+class Document:
+    info: PackageInfo
+    revision_history: tuple[RevisionEntry, ...]
+    sections: tuple[Section, ...]
+    software: tuple[tuple[str, str, str], ...] = ()  # (component, package, version)
+    changes: tuple[str, ...] = ()
+    model_version: int = MODEL_VERSION
+    extra: tuple[tuple[str, str], ...] = field(default=())
+
+    @property
+    def checks(self) -> tuple[tuple[Section, Check], ...]:
+        return tuple((s, c) for s in self.sections for c in s.checks)
+
+    @property
+    def design_checks(self) -> tuple[tuple[Section, Check], ...]:
+        return tuple((s, c) for s, c in self.checks if c.status != "info")
+
+    @property
+    def failed(self) -> tuple[tuple[Section, Check], ...]:
+        return tuple((s, c) for s, c in self.checks if c.status == "fail")
+
+    @property
+    def status(self) -> Status:
+        return "fail" if self.failed else "pass"
+
+    @property
+    def review_state(self) -> Literal["preliminary", "checked", "approved"]:
+        if not self.info.checked_by.strip():
+            return "preliminary"
+        if not self.info.approved_by.strip():
+            return "checked"
+        return "approved"
+
+
+# ---------------------------------------------------------------- JSON
+
+_TYPES = {cls.__name__: cls for cls in (*BLOCK_TYPES, Quantity, InputRow, ResultRow, Series,
+                                        Marker, Band, Panel, VerificationRow, Source, Section,
+                                        RevisionEntry, PackageInfo, Document)}
+
+
+def to_json(node: Any) -> Any:
+    """Serialise a model node to JSON-compatible data (with a ``type`` tag)."""
+    if dataclasses.is_dataclass(node) and not isinstance(node, type):
+        out: dict[str, Any] = {"type": type(node).__name__}
+        for f in dataclasses.fields(node):
+            out[f.name] = to_json(getattr(node, f.name))
+        return out
+    if isinstance(node, (tuple, list)):
+        return [to_json(x) for x in node]
+    return node
+
+
+def from_json(data: Any) -> Any:
+    """Rebuild a model node from :func:`to_json` output."""
+    if isinstance(data, dict) and "type" in data:
+        cls = _TYPES[data["type"]]
+        kwargs = {k: _tuplify(from_json(v)) for k, v in data.items() if k != "type"}
+        return cls(**kwargs)
+    if isinstance(data, list):
+        return tuple(from_json(x) for x in data)
+    return data
+
+
+def _tuplify(value: Any) -> Any:
+    if isinstance(value, list):
+        return tuple(_tuplify(v) for v in value)
+    return value

@@ -1,0 +1,152 @@
+"""Build one job file into its package: compute, render, self-check, write atomically.
+
+Nothing is written under a final name until the whole package exists and has passed
+its self-check; outputs go to temporary files in the output folder and are renamed.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from .archive import embedded_files
+from .build import compute_document
+from .errors import ExitCode, JobError, Problem
+from .jobfile import Job, load_job
+from .model import Document
+from .plugins import PluginSet
+from .results import results_bytes
+
+
+@dataclass(frozen=True, kw_only=True)
+class BuildOptions:
+    out_dir: Path
+    force: bool = False
+    final: bool = False
+    html: bool = False
+    use_cache: bool = True
+    cache_dir: Path | None = None
+    workers: int = 1
+    template_dir: Path | None = None  # overrides the job's [package] template_dir
+    self_check: bool = True
+
+
+@dataclass(frozen=True, kw_only=True)
+class BuildResult:
+    job: Path
+    pdf: Path
+    results: Path
+    status: str
+    exit_code: ExitCode
+    checks_total: int = 0
+    checks_failed: int = 0
+    review_state: str = ""
+    title: str = ""
+    calc_number: str = ""
+    revision: str = ""
+    html: Path | None = None
+    extra: dict = field(default_factory=dict)
+
+
+def output_paths(job: Job, out_dir: Path) -> tuple[Path, Path]:
+    return out_dir / f"{job.stem}.pdf", out_dir / f"{job.stem}.results.json"
+
+
+def refuse_final(doc: Document, job: Job) -> None:
+    problems = []
+    if doc.review_state != "approved":
+        state = {"preliminary": "has not been checked",
+                 "checked": "has been checked but not approved"}[doc.review_state]
+        problems.append(Problem(str(job.path), f"--final refused: the package {state}"
+                                " (set checked_by and approved_by)", field="package"))
+    if doc.failed:
+        ids = ", ".join(f"{s.calc_id}/{c.id}" for s, c in doc.failed)
+        problems.append(Problem(str(job.path), f"--final refused: design checks fail: {ids}"))
+    unverified = [s.calc_id for s in doc.sections if s.verification is None]
+    if unverified:
+        problems.append(Problem(str(job.path), "--final refused: calcs not independently"
+                                f" verified: {', '.join(unverified)}"))
+    if problems:
+        raise JobError(problems)
+
+
+def render_package(doc: Document, job: Job, opts: BuildOptions, results: bytes,
+                   plugins: PluginSet | None = None) -> tuple[bytes, str]:
+    """Return (pdf bytes, html) for a computed document."""
+    from .archive import manifest_bytes
+    from .render.assets import render_assets
+    from .render.html import render_html
+    from .render.pdf import write_pdf
+    from .templates import firm_logo, jinja_hook
+
+    template_dir = opts.template_dir or job.template_dir
+    assets = render_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
+                           workers=opts.workers)
+    html = render_html(doc, assets, template_dir=template_dir,
+                       logo=firm_logo(template_dir), extra_hook=jinja_hook(doc, plugins))
+    files = embedded_files(job, results, manifest_bytes(doc, job, results))
+    roots = (template_dir,) if template_dir else ()
+    pdf = write_pdf(html, base_dir=job.folder, attachments=files, date=job.info.date,
+                    extra_roots=roots)
+    return pdf, html
+
+
+def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
+    job = load_job(path, plugins)
+    pdf_path, results_path = output_paths(job, opts.out_dir)
+    if not opts.force:
+        existing = [p for p in (pdf_path, results_path) if p.exists()]
+        if existing:
+            raise JobError(Problem(str(path), f"{existing[0]} already exists; a package of the"
+                                   " same calc number and revision is replaced only with"
+                                   " --force"))
+    doc = compute_document(job, plugins)
+    if job.previous_package is not None:
+        from .archive import changes_since
+
+        doc = changes_since(doc, job)
+    if opts.final:
+        refuse_final(doc, job)
+    results = results_bytes(doc)
+    pdf, html = render_package(doc, job, opts, results, plugins)
+    if opts.self_check:
+        from .selfcheck import self_check
+
+        self_check(pdf, doc)
+    opts.out_dir.mkdir(parents=True, exist_ok=True)
+    html_path = None
+    if opts.html:
+        html_path = opts.out_dir / f"{job.stem}.html"
+        atomic_write(html_path, html.encode("utf-8"))
+    atomic_write(results_path, results)
+    atomic_write(pdf_path, pdf)
+    code = ExitCode.CHECKS_FAIL if doc.failed else ExitCode.OK
+    return BuildResult(job=path, pdf=pdf_path, results=results_path, status=doc.status,
+                       exit_code=code, checks_total=len(doc.design_checks),
+                       checks_failed=len(doc.failed), review_state=doc.review_state,
+                       title=job.info.title, calc_number=job.info.calc_number,
+                       revision=job.info.revision, html=html_path,
+                       extra={"date": job.info.date})
+
+
+def atomic_write(target: Path, data: bytes) -> None:
+    """Write ``data`` to a temporary file beside ``target``, fsync, then rename over it."""
+    target.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+    try:
+        umask = os.umask(0)
+        os.umask(umask)
+        os.fchmod(fd, 0o666 & ~umask)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, target)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise

@@ -1,0 +1,79 @@
+"""Draw a declarative :class:`~reportgen.model.Figure` to SVG with matplotlib.
+
+Deterministic output: fixed hash salt, no date metadata, text kept as text.
+"""
+
+from __future__ import annotations
+
+import io
+
+from ..model import Figure
+
+_STYLE = {"line": "-", "dashed": "--", "dotted": ":", "points": "none"}
+_COLORS = ("#1f3b5c", "#b5651d", "#4f7f3a", "#7a3b69", "#5c5c5c", "#2f7d8c")
+
+
+def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot as plt
+
+    matplotlib.rcParams.update({
+        "svg.fonttype": "none", "svg.hashsalt": "reportgen", "font.family": "DejaVu Sans",
+        "font.size": 8.5, "axes.linewidth": 0.6, "axes.grid": True, "grid.linewidth": 0.4,
+        "grid.color": "#c8c8c8", "lines.linewidth": 1.3, "legend.fontsize": 7.5,
+        "legend.frameon": False, "xtick.direction": "in", "ytick.direction": "in",
+        "path.simplify": True,
+    })
+    n = len(fig.panels)
+    height = 2.5 + 1.7 * (n - 1)
+    f, axes = plt.subplots(n, 1, figsize=(6.3, height), sharex=True, squeeze=False)
+    try:
+        for ax, panel in zip(axes[:, 0], fig.panels, strict=True):
+            colour = 0
+            for band in panel.bands:
+                ax.axvspan(band.x_low, band.x_high, color="#e8b4a0", alpha=0.35, lw=0,
+                           label=band.label or None)
+            for s in panel.series:
+                if s.emphasis:
+                    c = _COLORS[0]
+                else:
+                    colour += 1
+                    c = _COLORS[colour % len(_COLORS)]
+                kw = dict(color=c, label=s.label or None)
+                if s.style == "points":
+                    ax.plot(s.x, s.y, marker="o", ms=3, ls="none", **kw)
+                else:
+                    ax.plot(s.x, s.y, ls=_STYLE[s.style], lw=1.6 if s.emphasis else 1.1, **kw)
+            for value, label in panel.hlines:
+                ax.axhline(value, color="#8b1a1a", lw=0.9, ls="-.", label=label or None)
+            for mk in panel.markers:
+                if mk.y is None:
+                    ax.axvline(mk.x, color="#444444", lw=0.8, ls=":")
+                    if mk.label:
+                        ax.annotate(mk.label, (mk.x, 1.0), xycoords=("data", "axes fraction"),
+                                    xytext=(2, -10), textcoords="offset points", fontsize=7.5,
+                                    color="#333333")
+                else:
+                    ax.plot([mk.x], [mk.y], marker="D", ms=5, color="#8b1a1a", ls="none")
+                    if mk.label:
+                        ax.annotate(mk.label, (mk.x, mk.y), xytext=(5, 5),
+                                    textcoords="offset points", fontsize=7.5, color="#8b1a1a")
+            ax.set_yscale(panel.y_scale)
+            ax.set_ylabel(panel.y_label)
+            if panel.y_range:
+                ax.set_ylim(*panel.y_range)
+            if any(s.label for s in panel.series) or panel.bands or panel.hlines:
+                ax.legend(loc="best")
+        last = axes[-1, 0]
+        last.set_xscale(fig.x_scale)
+        if fig.x_range:
+            last.set_xlim(*fig.x_range)
+        last.set_xlabel(fig.x_label)
+        f.tight_layout(pad=0.4)
+        buf = io.BytesIO()
+        f.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
+    finally:
+        plt.close(f)
+    return buf.getvalue()

@@ -1,0 +1,116 @@
+"""Translate a final Document into one self-contained HTML string with Jinja2.
+
+Templates receive only the document and display helpers: no calculators, autoescape
+on, StrictUndefined. A firm's template folder overrides any built-in template by name.
+"""
+
+from __future__ import annotations
+
+import base64
+import math
+from collections.abc import Mapping
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+from markupsafe import Markup, escape
+
+from ..formula import _GREEK
+from ..model import BLOCK_TYPES, Check, Document, Quantity, VerificationRow
+from ..units import DIMENSIONS, format_number, table_display
+
+_GREEK_CHARS = {
+    "alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
+    "eta": "η", "theta": "θ", "kappa": "κ", "lambda": "λ", "mu": "μ", "nu": "ν", "xi": "ξ",
+    "pi": "π", "rho": "ρ", "sigma": "σ", "tau": "τ", "phi": "φ", "chi": "χ", "psi": "ψ",
+    "omega": "ω", "Gamma": "Γ", "Delta": "Δ", "Theta": "Θ", "Lambda": "Λ", "Phi": "Φ",
+    "Psi": "Ψ", "Omega": "Ω",
+}
+assert set(_GREEK_CHARS) == _GREEK
+
+COMPARISON_WORDS = {"<=": "≤", ">=": "≥", "<": "<", ">": ">", "≈": "≈", "=": "="}
+
+
+def builtin_templates() -> Path:
+    return Path(str(resources.files("reportgen_templates")))
+
+
+def symbol_html(name: str) -> Markup:
+    """``omega_n`` -> ``ω<sub>n</sub>`` (escaped)."""
+    if not name:
+        return Markup("")
+    base, _, sub = name.partition("_")
+    head = _GREEK_CHARS.get(base, base)
+    out = Markup("<i>{}</i>").format(head) if len(head) == 1 and head.isascii() else escape(head)
+    if sub:
+        subs = ",".join(_GREEK_CHARS.get(p, p) for p in sub.split("_"))
+        out += Markup("<sub>{}</sub>").format(subs)
+    return out
+
+
+def quantity_parts(q: Quantity | None, units: str, digits: int = 4) -> tuple[str, str]:
+    if q is None:
+        return ("", "")
+    value, label = table_display(q.value, q.dimension, units)
+    return format_number(value, digits), label
+
+
+def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
+             extra_hook: Any = None):
+    import jinja2
+
+    loaders: list[jinja2.BaseLoader] = []
+    if template_dir is not None:
+        loaders.append(jinja2.FileSystemLoader(str(template_dir)))
+    loaders.append(jinja2.FileSystemLoader(str(builtin_templates())))
+    env = jinja2.Environment(loader=jinja2.ChoiceLoader(loaders), autoescape=True,
+                             undefined=jinja2.StrictUndefined, trim_blocks=True,
+                             lstrip_blocks=True)
+
+    def qv(q: Quantity | None, digits: int = 4) -> str:
+        return quantity_parts(q, units, digits)[0]
+
+    def qu(q: Quantity | None) -> str:
+        return quantity_parts(q, units)[1]
+
+    def qfull(q: Quantity | None, digits: int = 4) -> str:
+        v, u = quantity_parts(q, units, digits)
+        return f"{v} {u}".strip()
+
+    def asset(block: Any) -> str:
+        return assets[block]
+
+    def vnum(x: float) -> str:
+        return format_number(x, 6)
+
+    def vrel(row: VerificationRow) -> str:
+        r = row.rel_difference
+        if r == 0:
+            return "0"
+        return "—" if not math.isfinite(r) else f"{r:.1e}"
+
+    def comparison(c: Check) -> str:
+        return COMPARISON_WORDS.get(c.comparison, c.comparison)
+
+    env.globals.update(
+        asset=asset, block_kind=lambda b: type(b).__name__, sym=symbol_html, qv=qv, qu=qu,
+        q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=units,
+        dimension_label=lambda d: (DIMENSIONS[d].us_label if units == "US"
+                                   else DIMENSIONS[d].si_label),
+        si_label=lambda d: DIMENSIONS[d].si_label if d in DIMENSIONS else d,
+        block_types=[t.__name__ for t in BLOCK_TYPES],
+    )
+    if extra_hook is not None:
+        extra_hook(env)
+    return env
+
+
+def data_uri(payload: bytes, mime: str = "image/svg+xml") -> str:
+    return f"data:{mime};base64," + base64.b64encode(payload).decode("ascii")
+
+
+def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path | None = None,
+                logo: str | None = None, extra_hook: Any = None) -> str:
+    env = make_env(template_dir, doc.info.units, assets, extra_hook)
+    template = env.get_template("package.html")
+    return template.render(doc=doc, info=doc.info, logo=logo)

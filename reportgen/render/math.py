@@ -1,0 +1,68 @@
+"""Typeset an :class:`~reportgen.model.Equation` as vector math (LaTeX -> SVG via ziamath).
+
+The symbolic and substituted forms both come from the one expression tree in
+:mod:`reportgen.formula`; the printed result is the equation's stored result.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+from ..formula import symbol_latex, to_latex
+from ..model import Equation
+from ..units import DIMENSIONS, display, format_number
+
+
+def unit_latex(label: str) -> str:
+    if not label:
+        return ""
+    text = label.replace("·", r"{\cdot}").replace("²", "^{2}").replace("°", r"^{\circ}")
+    return r"\ \mathrm{" + text + "}"
+
+
+def value_latex(value: float, digits: int = 4) -> str:
+    text = format_number(value, digits)
+    if "e" in text:
+        mant, exp = text.split("e")
+        return f"{mant} \\times 10^{{{int(exp)}}}"
+    return text
+
+
+def equation_latex(eq: Equation, units: str = "SI") -> str:
+    """``lhs = symbolic = substituted = result unit`` (plus the US value when US)."""
+    lhs = symbol_latex(eq.name)
+    parts = [lhs]
+    symbolic = to_latex(eq.expression)
+    values = dict(eq.operands)
+    parts.append(symbolic)
+    if values:
+        substituted = to_latex(eq.expression, values)
+        if substituted != symbolic:
+            parts.append(substituted)
+    dim = DIMENSIONS[eq.result.dimension]
+    result = value_latex(eq.result.value) + unit_latex(dim.si_label)
+    if units == "US" and dim.us_label and dim.us_label != dim.si_label:
+        us_value, us_label = display(eq.result.value, eq.result.dimension, "US")
+        result += r"\ \left(" + value_latex(us_value) + unit_latex(us_label) + r"\right)"
+    elif dim.name == "angle":
+        result += r"\ \left(" + value_latex(math.degrees(eq.result.value)) + r"^{\circ}\right)"
+    parts.append(result)
+    return " = ".join(parts)
+
+
+_SVG_SIZE = re.compile(rb'width="([\d.]+)" height="([\d.]+)"')
+
+
+def latex_svg(latex: str, size: float = 12.5) -> bytes:
+    import ziamath
+
+    svg = ziamath.Latex(latex, size=size).svg()
+    return svg.encode("utf-8")
+
+
+def svg_size(svg: bytes) -> tuple[float, float]:
+    m = _SVG_SIZE.search(svg)
+    if not m:
+        return (0.0, 0.0)
+    return float(m.group(1)), float(m.group(2))

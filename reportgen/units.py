@@ -1,0 +1,233 @@
+"""Units at the edges: parse quantity strings from job files into SI floats, and
+convert SI floats into the display system (SI or US customary) for rendering.
+
+Everything between loading and rendering is plain SI floats. The core knows
+physical dimensions, not vibration.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+
+__all__ = [
+    "DIMENSIONS",
+    "Dimension",
+    "STANDARD_GRAVITY",
+    "UnitProblem",
+    "display",
+    "format_number",
+    "parse_quantity",
+]
+
+#: Standard gravity, m/s² (CGPM 1901, ISO 80000-3).
+STANDARD_GRAVITY = 9.80665
+
+
+@dataclass(frozen=True, slots=True)
+class Dimension:
+    """A physical dimension an input or result may have."""
+
+    name: str
+    si_unit: str  # unit of the SI value (results.json), pint syntax
+    si_label: str  # how the SI unit is printed
+    us_unit: str
+    us_label: str
+    example: str  # an example unit for error messages
+    pint_dimensionality: str  # as pint prints it, "" for dimensionless
+
+
+DIMENSIONS: dict[str, Dimension] = {
+    d.name: d
+    for d in (
+        Dimension("dimensionless", "", "", "", "", "a plain number such as 0.05", ""),
+        Dimension("mass", "kg", "kg", "lb", "lb", "kg", "[mass]"),
+        Dimension("length", "m", "m", "in", "in", "mm", "[length]"),
+        Dimension("time", "s", "s", "s", "s", "s", "[time]"),
+        Dimension("force", "N", "N", "lbf", "lbf", "kN", "[length] * [mass] / [time] ** 2"),
+        Dimension("stiffness", "N/m", "N/m", "lbf/in", "lbf/in", "kN/m",
+                  "[mass] / [time] ** 2"),
+        Dimension("damping", "N*s/m", "N·s/m", "lbf*s/in", "lbf·s/in", "N*s/m",
+                  "[mass] / [time]"),
+        Dimension("velocity", "m/s", "m/s", "in/s", "in/s", "mm/s", "[length] / [time]"),
+        Dimension("acceleration", "m/s**2", "m/s²", "in/s**2", "in/s²", "m/s**2 or g",
+                  "[length] / [time] ** 2"),
+        Dimension("frequency", "Hz", "Hz", "Hz", "Hz", "Hz or rpm", "1 / [time]"),
+        Dimension("angular_frequency", "rad/s", "rad/s", "rad/s", "rad/s", "rad/s",
+                  "1 / [time]"),
+        Dimension("angle", "rad", "rad", "deg", "°", "deg", ""),
+        Dimension("mass_length", "kg*m", "kg·m", "lb*in", "lb·in", "kg*m or g*mm",
+                  "[length] * [mass]"),
+    )
+}
+
+
+class UnitProblem(ValueError):
+    """A quantity string that cannot be read as the expected dimension."""
+
+
+@lru_cache(maxsize=1)
+def _registry():  # pint is imported lazily: start-up stays fast
+    import pint
+
+    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    return ureg
+
+
+_SPEED_UNITS = re.compile(r"\b(rpm|rps|rev|revolution|revolutions|cpm)\b")
+_GRAVITY_TOKEN = re.compile(r"(?<![\w.])g(?![\w])")
+
+
+def _prepare(text: str, dimension: str) -> str:
+    text = text.strip()
+    if dimension == "acceleration":
+        # "0.1 g" for an acceleration is standard gravity, not grams.
+        text = _GRAVITY_TOKEN.sub("g_0", text)
+    if dimension == "frequency":
+        # pint converts rpm through radians (1500 rpm -> 157 Hz); a speed in rpm
+        # is revolutions per minute (1500 rpm = 25 Hz). Rewrite to plain cycles.
+        text = _SPEED_UNITS.sub(
+            lambda m: {"rpm": "(1/minute)", "cpm": "(1/minute)", "rps": "(1/second)"}.get(
+                m.group(1), "1"),
+            text,
+        )
+    return text
+
+
+def parse_quantity(raw: object, dimension: str) -> float:
+    """Read ``raw`` (a job-file value) as ``dimension`` and return its SI value.
+
+    Raises :class:`UnitProblem` with a message that says what was expected.
+    """
+    dim = DIMENSIONS[dimension]
+    if isinstance(raw, bool):
+        raise UnitProblem(f"expected {_expect(dim)}, found the boolean {raw!r}")
+    if isinstance(raw, (int, float)):
+        if dimension != "dimensionless":
+            raise UnitProblem(
+                f"expected a quantity with a unit of {dim.name} (for example \"{_example(dim)}\"),"
+                f" found the plain number {raw!r}")
+        value = float(raw)
+        _finite(value, raw)
+        return value
+    if not isinstance(raw, str):
+        raise UnitProblem(f"expected {_expect(dim)}, found {type(raw).__name__} {raw!r}")
+    if len(raw) > 200:
+        raise UnitProblem("quantity text longer than 200 characters")
+    ureg = _registry()
+    text = _prepare(raw, dimension)
+    try:
+        q = ureg.Quantity(text)
+    except Exception as exc:  # pint raises many kinds for bad text
+        raise UnitProblem(f"cannot read {raw!r} as a quantity ({type(exc).__name__}: {exc})"
+                          ) from None
+    if not isinstance(q, ureg.Quantity):
+        q = ureg.Quantity(float(q), "")
+    try:
+        value = _to_si(q, dim, ureg)
+    except Exception:
+        found = str(q.dimensionality) if str(q.dimensionality) != "dimensionless" else "no unit"
+        raise UnitProblem(
+            f"expected {dim.name.replace('_', ' × ')} (for example \"{_example(dim)}\"), found"
+            f" {raw!r} with dimension {found}") from None
+    _finite(value, raw)
+    return value
+
+
+def _to_si(q, dim: Dimension, ureg) -> float:
+    if dim.name == "dimensionless":
+        if not q.dimensionless:
+            raise ValueError
+        return float(q.to("").magnitude)
+    if dim.name == "frequency":
+        if q.dimensionality != ureg.Quantity(1, "Hz").dimensionality:
+            raise ValueError
+        if "radian" in str(q.units):
+            # an angular frequency given for a cycle frequency
+            return float(q.to("rad/s").magnitude) / (2.0 * math.pi)
+        return float(q.to("Hz").magnitude)
+    if dim.name == "angular_frequency":
+        if q.dimensionality != ureg.Quantity(1, "Hz").dimensionality:
+            raise ValueError
+        return float(q.to("rad/s").magnitude)
+    if dim.name == "angle":
+        if not q.dimensionless:
+            raise ValueError
+        return float(q.to("rad").magnitude)
+    return float(q.to(dim.si_unit).magnitude)
+
+
+def _finite(value: float, raw: object) -> None:
+    if not math.isfinite(value):
+        raise UnitProblem(f"expected a finite value, found {raw!r}")
+
+
+def _expect(dim: Dimension) -> str:
+    if dim.name == "dimensionless":
+        return "a plain number"
+    return f"a quantity string of {dim.name} such as \"1 {dim.example.split()[0]}\""
+
+
+def _example(dim: Dimension) -> str:
+    return f"1 {dim.example.split()[0]}"
+
+
+# ---------------------------------------------------------------- display
+
+_US_FACTORS: dict[str, float] = {}
+
+
+def _us_factor(dim: Dimension) -> float:
+    if dim.name not in _US_FACTORS:
+        if dim.name == "angle":
+            _US_FACTORS[dim.name] = 180.0 / math.pi
+        elif not dim.us_unit or dim.us_unit == dim.si_unit:
+            _US_FACTORS[dim.name] = 1.0
+        else:
+            ureg = _registry()
+            _US_FACTORS[dim.name] = float(ureg.Quantity(1.0, dim.si_unit).to(dim.us_unit).magnitude)
+    return _US_FACTORS[dim.name]
+
+
+#: Units that tables show in the SI system where the coherent unit reads badly
+#: (deflections in mm, not 0.0034 m). Equations always substitute coherent SI units.
+SI_TABLE_UNITS: dict[str, tuple[float, str]] = {
+    "length": (1e3, "mm"), "velocity": (1e3, "mm/s"), "stiffness": (1e-3, "kN/m"),
+    "mass_length": (1e3, "kg·mm"),
+}
+
+
+def display(value: float, dimension: str, system: str) -> tuple[float, str]:
+    """Convert an SI value to the display system; return (value, unit label)."""
+    dim = DIMENSIONS[dimension]
+    if system == "US":
+        return value * _us_factor(dim), dim.us_label
+    return value, dim.si_label
+
+
+def table_display(value: float, dimension: str, system: str) -> tuple[float, str]:
+    """Like :func:`display`, in the units an engineer reads in a table."""
+    if system == "SI" and dimension in SI_TABLE_UNITS:
+        factor, label = SI_TABLE_UNITS[dimension]
+        return value * factor, label
+    return display(value, dimension, system)
+
+
+def format_number(value: float, digits: int = 4) -> str:
+    """Format with ``digits`` significant figures, plain notation where readable."""
+    if value == 0 or not math.isfinite(value):
+        return "0" if value == 0 else str(value)
+    mag = math.floor(math.log10(abs(value)))
+    if -4 <= mag < 6:
+        decimals = max(digits - 1 - mag, 0)
+        text = f"{value:.{decimals}f}"
+        if "." in text:
+            text = text.rstrip("0").rstrip(".")
+        return text
+    mant = value / 10**mag
+    mtext = f"{mant:.{digits - 1}f}".rstrip("0").rstrip(".")
+    if mtext in ("10", "-10"):  # rounding carried into the next decade
+        mtext, mag = ("1" if mant > 0 else "-1"), mag + 1
+    return f"{mtext}e{mag}"
