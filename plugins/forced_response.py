@@ -1,0 +1,1 @@
+"""forced_response plugin (being written)."""

@@ -1,0 +1,1 @@
+"""isolation plugin (being written)."""
