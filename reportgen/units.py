@@ -109,13 +109,17 @@ def parse_quantity(raw: object, dimension: str) -> float:
             raise UnitProblem(
                 f"expected a quantity with a unit of {dim.name} (for example \"{_example(dim)}\"),"
                 f" found the plain number {raw!r}")
-        value = float(raw)
+        try:
+            value = float(raw)
+        except OverflowError:  # TOML integers may exceed a float
+            raise UnitProblem(f"expected a finite value, found {_short(raw)}") from None
         _finite(value, raw)
         return value
     if not isinstance(raw, str):
         raise UnitProblem(f"expected {_expect(dim)}, found {type(raw).__name__} {raw!r}")
     if len(raw) > 200:
         raise UnitProblem("quantity text longer than 200 characters")
+    _screen(raw, dim)
     ureg = _registry()
     text = _prepare(raw, dimension)
     try:
@@ -134,6 +138,33 @@ def parse_quantity(raw: object, dimension: str) -> float:
             f" {raw!r} with dimension {found}") from None
     _finite(value, raw)
     return value
+
+
+# A leading plain number, then a unit expression whose only digits are single-digit
+# exponents of a unit ("m/s**2", "g^2/Hz") or a reciprocal "1/". pint evaluates the
+# arithmetic in the text, so "10**9**9 kg" would hang the machine: only this shape
+# reaches pint.
+_NUMBER = re.compile(r"^\s*[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]{1,4})?")
+_UNIT_EXPONENT = re.compile(r"(?<=[A-Za-z_)])\s*(?:\*\*|\^)\s*(?:-?[0-9]|\(-?[0-9]\))"
+                            r"(?![0-9.]|\s*(?:\*\*|\^))")
+_RECIPROCAL = re.compile(r"(?<![\w.])1(?=\s*/)")
+_NOT_FINITE = ("nan", "inf", "infinity")
+
+
+def _screen(raw: str, dim: Dimension) -> None:
+    words = raw.strip().lower().split()
+    if words and words[0].lstrip("+-") in _NOT_FINITE:
+        raise UnitProblem(f"expected a finite value, found {raw!r}")
+    match = _NUMBER.match(raw)
+    if match is None:
+        raise UnitProblem(f"cannot read {raw!r} as a quantity: expected a number followed by"
+                          f" a unit of {dim.name.replace('_', ' × ')} (for example"
+                          f" \"{_example(dim)}\")")
+    rest = _RECIPROCAL.sub("", _UNIT_EXPONENT.sub("", raw[match.end():]))
+    if re.search(r"[0-9]", rest):
+        raise UnitProblem(f"cannot read {raw!r} as a quantity: expected one number followed"
+                          f" by a unit (for example \"{_example(dim)}\"); arithmetic in a value"
+                          " is not accepted")
 
 
 def _to_si(q, dim: Dimension, ureg) -> float:
@@ -161,7 +192,12 @@ def _to_si(q, dim: Dimension, ureg) -> float:
 
 def _finite(value: float, raw: object) -> None:
     if not math.isfinite(value):
-        raise UnitProblem(f"expected a finite value, found {raw!r}")
+        raise UnitProblem(f"expected a finite value, found {_short(raw)}")
+
+
+def _short(raw: object) -> str:
+    text = repr(raw)
+    return text if len(text) <= 60 else text[:57] + "..."
 
 
 def _expect(dim: Dimension) -> str:
@@ -171,6 +207,8 @@ def _expect(dim: Dimension) -> str:
 
 
 def _example(dim: Dimension) -> str:
+    if dim.name == "dimensionless":
+        return "0.05"
     return f"1 {dim.example.split()[0]}"
 
 
