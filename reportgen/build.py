@@ -169,6 +169,9 @@ def check_output(out: Any) -> str:
         if isinstance(b, Equation):
             if not math.isfinite(b.result.value) or b.result.dimension not in DIMENSIONS:
                 return f"equation {b.name} has a bad result {b.result!r}"
+            problem = _equation_problem(b)
+            if problem:
+                return problem
         if isinstance(b, Figure):
             for p in b.panels:
                 for s in p.series:
@@ -193,6 +196,26 @@ def check_output(out: Any) -> str:
     ids = [c.id for c in out.checks]
     if len(ids) != len(set(ids)):
         return "duplicate check ids"
+    return ""
+
+
+def _equation_problem(eq: Equation) -> str:
+    """An equation block whose substitution does not give its printed result is refused:
+    a reader re-doing the arithmetic must get the number the package states."""
+    from .formula import FormulaError, evaluate, names_in
+
+    try:
+        names = names_in(eq.expression)
+        operands = dict(eq.operands)
+        if names != operands.keys():
+            return (f"equation {eq.name} = {eq.expression}: operands {sorted(operands)}"
+                    f" do not match the names in the expression {sorted(names)}")
+        again = evaluate(eq.expression, operands)
+    except (FormulaError, ArithmeticError, ValueError, TypeError) as exc:
+        return f"equation {eq.name} = {eq.expression} cannot be evaluated: {exc}"
+    if not math.isclose(again, eq.result.value, rel_tol=1e-9, abs_tol=1e-300):
+        return (f"equation {eq.name} = {eq.expression}: its operands give {again:.6g}, but"
+                f" the block states {eq.result.value:.6g}")
     return ""
 
 

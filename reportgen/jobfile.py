@@ -300,7 +300,8 @@ class _Validator:
         else:
             reg = plugins.get(plugin)
             if reg is None:
-                broken = [b for b in plugins.broken if b.plugin == plugin]
+                broken = [b for b in plugins.broken
+                          if b.plugin == plugin or plugin in b.calc_types]
                 extra = f"; that plugin failed to load: {broken[0].error}" if broken else ""
                 self.add(f"unknown calc type '{plugin}'{_nearest(plugin, plugins.names())};"
                          f" known calc types: {', '.join(plugins.names()) or 'none'}{extra}",

@@ -20,7 +20,6 @@ from .calc import CalcType
 from .errors import ExitCode, PluginError
 
 
-
 @dataclass(frozen=True, slots=True)
 class RegisteredCalc:
     calc_type: CalcType
@@ -38,6 +37,9 @@ class BrokenPlugin:
     plugin: str
     package: str
     error: str
+    #: calc type names the plugin declared but that were refused (so a job naming one
+    #: can say why it is unavailable)
+    calc_types: tuple[str, ...] = ()
 
 
 @dataclass(slots=True)
@@ -48,6 +50,8 @@ class PluginSet:
     broken: list[BrokenPlugin] = field(default_factory=list)
     conflicts: list[str] = field(default_factory=list)
     pm: pluggy.PluginManager | None = None
+    #: plugin name -> (distribution, version), for naming a plugin in hook errors
+    packages: dict[str, tuple[str, str]] = field(default_factory=dict)
 
     def get(self, name: str) -> RegisteredCalc | None:
         return self.calcs.get(name)
@@ -100,6 +104,16 @@ def get_plugin_manager(extra: Iterable[tuple[str, object]] = (), *,
         except Exception as exc:
             result.broken.append(BrokenPlugin(name, dist, f"{type(exc).__name__}: {exc}"))
             continue
+        unknown = sorted(hc.name for hc in pm.get_hookcallers(module) or () if not hc.has_spec())
+        if unknown:
+            # pluggy's check_pending would raise for the whole set; name the one plugin
+            pm.unregister(module)
+            known = ", ".join(sorted(n for n in dir(hookspecs) if n.startswith("reportgen_")))
+            result.broken.append(BrokenPlugin(
+                name, dist, f"implements unknown hook(s) {', '.join(unknown)}"
+                f" (misspelled?); the hooks are: {known}"))
+            continue
+        result.packages[name] = (dist, dver)
         impl = getattr(module, "reportgen_register_calc_types", None)
         if impl is None:
             continue
@@ -113,7 +127,8 @@ def get_plugin_manager(extra: Iterable[tuple[str, object]] = (), *,
         for ct in types:
             problem = _check_calc_type(ct, name, dist)
             if problem:
-                result.broken.append(BrokenPlugin(name, dist, problem))
+                result.broken.append(BrokenPlugin(
+                    name, dist, problem, calc_types=(str(getattr(ct, "name", "") or ""),)))
                 continue
             if ct.name in result.calcs:
                 other = result.calcs[ct.name]
@@ -142,8 +157,12 @@ def _check_calc_type(ct: object, plugin: str, dist: str) -> str:
         return f"calc type {type(ct).__name__} has no name"
     api = getattr(ct, "api_version", None)
     if api not in hookspecs.SUPPORTED_API_VERSIONS:
+        from . import __version__
+
         supported = ", ".join(str(v) for v in sorted(hookspecs.SUPPORTED_API_VERSIONS))
-        return (f"calc type '{ct.name}' targets reportgen hook API {api}, but this"
-                f" reportgen supports API {supported}; refused")
+        return (f"calc type '{ct.name}' of plugin '{plugin}' (package {dist}) targets"
+                f" reportgen hook API {api!r}, but reportgen {__version__} supports API"
+                f" {supported}; refused (install a release of {dist} built for API"
+                f" {hookspecs.API_VERSION}, or a reportgen that supports API {api!r})")
     return ""
 

@@ -50,8 +50,21 @@ def jinja_hook(doc: Document, plugins: PluginSet | None) -> Any:
     if plugins is None or plugins.pm is None:
         return None
 
+    context = {"api_version": API_VERSION, "units": doc.info.units}
+
     def hook(env: Any) -> None:
-        plugins.pm.hook.reportgen_prepare_jinja_env(
-            env=env, context={"api_version": API_VERSION, "units": doc.info.units})
+        # Call each implementation on its own, as pluggy's loop would stop at the first
+        # exception without saying whose it was.
+        for impl in plugins.pm.hook.reportgen_prepare_jinja_env.get_hookimpls():
+            kwargs = {"env": env, "context": context}
+            try:
+                impl.function(**{k: kwargs[k] for k in impl.argnames})
+            except Exception as exc:
+                from .errors import PluginError
+
+                package = plugins.packages.get(impl.plugin_name, ("?", "?"))[0]
+                raise PluginError(f"raised {type(exc).__name__}: {exc}",
+                                  plugin=impl.plugin_name, package=package,
+                                  stage="reportgen_prepare_jinja_env") from exc
 
     return hook
