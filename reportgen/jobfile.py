@@ -10,6 +10,7 @@ import datetime as _dt
 import difflib
 import math
 import re
+import stat
 import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field
@@ -25,6 +26,12 @@ from .units import DIMENSIONS, UnitProblem, parse_quantity
 MAX_JOB_BYTES = 1_000_000
 MAX_CALCS = 200
 MAX_TEXT = 4000
+# attachments are archived inside every PDF: keep packages mailable and readers responsive
+MAX_ATTACHMENTS = 20
+MAX_ATTACHMENT_BYTES = 10_000_000
+MAX_ATTACHMENTS_TOTAL = 25_000_000
+#: embedded names the package itself uses; an attachment may not take one of them
+RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json"})
 _ID = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
 _SAFE_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")
 
@@ -33,7 +40,7 @@ PACKAGE_KEYS = {
     "calc_number": True, "revision": True, "date": False, "units": False,
     "prepared_by": False, "prepared_date": False, "checked_by": False, "checked_date": False,
     "approved_by": False, "approved_date": False, "revision_history": False,
-    "template_dir": False, "firm": False, "previous_package": False,
+    "template_dir": False, "firm": False, "previous_package": False, "attachments": False,
 }
 CALC_KEYS = {"id", "plugin", "title", "notes", "inputs", "criteria"}
 
@@ -53,6 +60,15 @@ class CalcSpec:
 
 
 @dataclass(frozen=True, kw_only=True)
+class JobAttachment:
+    """A file from the job's folder that the package embeds (read once, at load time)."""
+
+    path: str  # as written in the job, relative to the job folder, '/' separated
+    name: str  # the embedded name: the file's base name
+    data: bytes
+
+
+@dataclass(frozen=True, kw_only=True)
 class Job:
     path: Path
     source: bytes
@@ -62,6 +78,7 @@ class Job:
     template_dir: Path | None = None
     previous_package: Path | None = None
     raw: Mapping[str, Any] = field(default_factory=dict)
+    attachments: tuple[JobAttachment, ...] = ()
 
     @property
     def stem(self) -> str:
@@ -79,33 +96,53 @@ def _nearest(word: str, options: list[str]) -> str:
 
 def read_job_bytes(path: Path) -> bytes:
     try:
-        size = path.stat().st_size
+        st = path.stat()
     except OSError as exc:
         raise JobError(Problem(str(path), f"cannot read the job file: {exc.strerror}")) from None
-    if size > MAX_JOB_BYTES:
-        raise JobError(Problem(str(path), f"job file is {size} bytes; the limit is"
+    if not stat.S_ISREG(st.st_mode):
+        # a device or pipe (/dev/zero) reports size 0 and never ends
+        raise JobError(Problem(str(path), "not a regular file; a job file is a TOML text file"))
+    if st.st_size > MAX_JOB_BYTES:
+        raise JobError(Problem(str(path), f"job file is {st.st_size} bytes; the limit is"
                                           f" {MAX_JOB_BYTES} bytes"))
     try:
-        return path.read_bytes()
+        with path.open("rb") as fh:
+            data = fh.read(MAX_JOB_BYTES + 1)  # bounded even if the file grows meanwhile
     except OSError as exc:
         raise JobError(Problem(str(path), f"cannot read the job file: {exc.strerror}")) from None
+    if len(data) > MAX_JOB_BYTES:
+        raise JobError(Problem(str(path), f"job file is over the limit of {MAX_JOB_BYTES}"
+                                          " bytes"))
+    return data
 
 
-def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = None) -> Job:
-    """Read, parse and validate a job file. Raises JobError with every problem."""
+def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = None,
+             archived: bool = False) -> Job:
+    """Read, parse and validate a job file. Raises JobError with every problem.
+
+    ``archived``: the job came out of a package to be recomputed; the previous package
+    and the template folder it names need not exist (neither changes a result).
+    """
     path = Path(path)
     fname = str(path)
     data_bytes = read_job_bytes(path) if source is None else source
     try:
         text = data_bytes.decode("utf-8")
     except UnicodeDecodeError as exc:
-        raise JobError(Problem(fname, f"job file is not UTF-8 text (byte {exc.start})")) from None
+        line = data_bytes.count(b"\n", 0, exc.start) + 1
+        col = exc.start - (data_bytes.rfind(b"\n", 0, exc.start) + 1) + 1
+        raise JobError(Problem(fname, f"job file is not UTF-8 text: byte"
+                                      f" 0x{data_bytes[exc.start]:02x} at line {line}, column"
+                                      f" {col} (save the file as UTF-8)")) from None
+    if not text.strip():
+        raise JobError(Problem(fname, "the job file is empty; it needs a [package] table and"
+                                      " at least one [[calc]] table", field="package"))
     try:
         raw = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise JobError(Problem(fname, f"TOML syntax error: {exc}")) from None
+        raise JobError(_syntax_problem(fname, text, exc)) from None
     problems: list[Problem] = []
-    v = _Validator(fname, problems)
+    v = _Validator(fname, problems, archived=archived)
     for key in raw:
         if key not in ("package", "calc"):
             v.add(f"unknown top-level table '{key}'{_nearest(key, ['package', 'calc'])};"
@@ -116,6 +153,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
               field="package")
         pkg = {}
     info, history, template_dir, previous = v.package(pkg, path)
+    attachments = v.attachments(pkg, path)
     calcs_raw = raw.get("calc", [])
     if not isinstance(calcs_raw, list) or not all(isinstance(c, dict) for c in calcs_raw):
         v.add("'calc' must be an array of tables: write each calc as [[calc]]", field="calc")
@@ -137,13 +175,74 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     assert info is not None
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
                calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
-               raw=raw)
+               raw=raw, attachments=attachments)
+
+
+_AT = re.compile(r"\(at line (\d+), column (\d+)\)")
+_HEADER = re.compile(r"^\s*(\[\[?)\s*([A-Za-z0-9_.\-\s\"]+?)\s*\]\]?")
+_KEY = re.compile(r"^\s*([A-Za-z0-9_\-]+)\s*=")
+_CALC_ID = re.compile(r"^\s*id\s*=\s*[\"']([^\"']*)[\"']")
+
+
+def _syntax_problem(fname: str, text: str, exc: Exception) -> Problem:
+    """A TOML syntax error with its line and column, and (best effort) the calc and field."""
+    message = str(exc)
+    lines = text.splitlines()
+    at = _AT.search(message)
+    lineno = int(at.group(1)) if at else _duplicate_key_line(lines)
+    if at is None and lineno:
+        message = message.replace("(at end of document)", "").strip()
+        message += f" (at line {lineno}: the key is given twice)"
+    calc, field = "", ""
+    if lineno:
+        table, block_start = "", None
+        for i, line in enumerate(lines[:lineno]):
+            h = _HEADER.match(line)
+            if h:
+                table = h.group(2).replace(" ", "")
+                if h.group(1) == "[[" and table == "calc":
+                    block_start = i
+        if block_start is not None and table.split(".")[0] == "calc":
+            for line in lines[block_start + 1:]:
+                h = _HEADER.match(line)
+                if h and h.group(1) == "[[":
+                    break
+                m = _CALC_ID.match(line)
+                if m:
+                    calc = m.group(1)
+                    break
+            calc = calc or "?"
+        k = _KEY.match(lines[lineno - 1]) if lineno <= len(lines) else None
+        prefix = table.split(".", 1)[1] + "." if table.startswith("calc.") else (
+            "" if table == "calc" else (table + "." if table else ""))
+        field = prefix + k.group(1) if k else table
+    return Problem(fname, f"TOML syntax error: {message}", calc, field)
+
+
+def _duplicate_key_line(lines: list[str]) -> int:
+    """Line of the first key given twice in one table (tomllib does not say where)."""
+    seen: set[tuple[str, str]] = set()
+    table, array = "", -1
+    for i, line in enumerate(lines):
+        h = _HEADER.match(line)
+        if h:
+            # sub-tables of each [[calc]] are separate tables: key them by their array entry
+            array = i if h.group(1) == "[[" else array
+            table = f"{h.group(2).strip()}#{array}"
+            continue
+        k = _KEY.match(line)
+        if k:
+            if (table, k.group(1)) in seen:
+                return i + 1
+            seen.add((table, k.group(1)))
+    return 0
 
 
 class _Validator:
-    def __init__(self, fname: str, problems: list[Problem]):
+    def __init__(self, fname: str, problems: list[Problem], archived: bool = False):
         self.fname = fname
         self.problems = problems
+        self.archived = archived
 
     def add(self, message: str, *, calc: str = "", field: str = "") -> None:
         self.problems.append(Problem(self.fname, message, calc, field))
@@ -194,7 +293,8 @@ class _Validator:
                          field=f"package.{key}")
         t = {k: self._text(pkg, k, "package.", req) for k, req in PACKAGE_KEYS.items()
              if k not in ("revision_history", "date", "prepared_date", "checked_date",
-                          "approved_date", "units", "template_dir", "previous_package")}
+                          "approved_date", "units", "template_dir", "previous_package",
+                          "attachments")}
         for key in ("calc_number", "revision"):
             if t[key] and not _SAFE_NAME.match(t[key]):
                 self.add(f"'{t[key]}' cannot name a file: use letters, digits, '.', '_' or"
@@ -237,9 +337,9 @@ class _Validator:
         if not history and t["revision"]:
             history.append(RevisionEntry(revision=t["revision"], date=date,
                                          description="Issue"))
-        template_dir = self._folder(pkg, "template_dir", path)
+        template_dir = None if self.archived else self._folder(pkg, "template_dir", path)
         previous = None
-        if pkg.get("previous_package"):
+        if pkg.get("previous_package") and not self.archived:
             p = pkg["previous_package"]
             if not isinstance(p, str):
                 self.add("expected a path to the previous revision's PDF",
@@ -255,6 +355,69 @@ class _Validator:
             units=units, prepared_by=t["prepared_by"], checked_by=t["checked_by"],
             approved_by=t["approved_by"], firm=t["firm"], **dates)
         return info, tuple(history), template_dir, previous
+
+    def attachments(self, pkg: Mapping[str, Any], path: Path) -> tuple[JobAttachment, ...]:
+        """Files listed in ``[package] attachments``: regular files inside the job folder."""
+        listed = pkg.get("attachments", [])
+        fld = "package.attachments"
+        if not isinstance(listed, list) or not all(isinstance(a, str) for a in listed):
+            self.add('expected a list of file names beside the job file, such as'
+                     ' ["survey.csv"]', field=fld)
+            return ()
+        if len(listed) > MAX_ATTACHMENTS:
+            self.add(f"{len(listed)} attachments; the limit is {MAX_ATTACHMENTS}", field=fld)
+            return ()
+        root = path.parent.resolve()
+        out: list[JobAttachment] = []
+        names: dict[str, str] = {}
+        total = 0
+        for i, rel in enumerate(listed):
+            where = f"{fld}[{i}]"
+            parts = rel.replace("\\", "/").split("/")
+            if (not rel.strip() or "\0" in rel or rel.startswith(("/", "\\")) or ":" in rel
+                    or any(p in ("", ".", "..") for p in parts)):
+                self.add(f"{rel!r} must be a relative path to a file inside the job's folder"
+                         " (no '..', no absolute path)", field=where)
+                continue
+            name = parts[-1]
+            if name in RESERVED_NAMES or name in names:
+                other = "the package's own file" if name in RESERVED_NAMES else repr(names[name])
+                self.add(f"{rel!r} would be embedded as '{name}', which {other} already uses;"
+                         " rename the file", field=where)
+                continue
+            target = path.parent.joinpath(*parts)
+            # refuse symlinks anywhere on the way: the package must hold what the folder holds
+            chain = [path.parent.joinpath(*parts[:n]) for n in range(1, len(parts) + 1)]
+            if any(c.is_symlink() for c in chain):
+                self.add(f"{rel!r} is a symbolic link (or lies under one); attach the file"
+                         " itself", field=where)
+                continue
+            try:
+                real = target.resolve(strict=True)
+                st = real.stat()
+            except OSError:
+                self.add(f"attachment {rel!r} not found beside the job file", field=where)
+                continue
+            if not real.is_relative_to(root) or not real.is_file():
+                self.add(f"{rel!r} is not a regular file inside the job's folder", field=where)
+                continue
+            if st.st_size > MAX_ATTACHMENT_BYTES:
+                self.add(f"{rel!r} is {st.st_size} bytes; the limit for one attachment is"
+                         f" {MAX_ATTACHMENT_BYTES} bytes", field=where)
+                continue
+            total += st.st_size
+            if total > MAX_ATTACHMENTS_TOTAL:
+                self.add(f"attachments total more than {MAX_ATTACHMENTS_TOTAL} bytes",
+                         field=where)
+                break
+            try:
+                data = real.read_bytes()
+            except OSError as exc:
+                self.add(f"cannot read attachment {rel!r}: {exc.strerror}", field=where)
+                continue
+            names[name] = rel
+            out.append(JobAttachment(path="/".join(parts), name=name, data=data))
+        return tuple(out)
 
     def _folder(self, pkg: Mapping[str, Any], key: str, path: Path) -> Path | None:
         value = pkg.get(key)

@@ -60,6 +60,12 @@ def _fetcher_class():
     return JobFolderFetcher
 
 
+def _data_url(a: EmbeddedFile) -> str:
+    import base64
+
+    return f"data:{a.mime};base64,{base64.b64encode(a.data).decode('ascii')}"
+
+
 def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFile],
               date: str, extra_roots: tuple[Path, ...] = ()) -> bytes:
     """Lay out ``html`` and return the PDF bytes (PDF/A-3b, deterministic)."""
@@ -74,7 +80,9 @@ def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFil
 
     fetcher = _fetcher_class()(base_dir, extra_roots)
     try:
-        atts = [weasyprint.Attachment(string=a.data, name=a.name, description=a.description,
+        # a data: URL carries the MIME type into the file's /Subtype (PDF/A-3 wants it);
+        # WeasyPrint ignores a type given any other way
+        atts = [weasyprint.Attachment(url=_data_url(a), name=a.name, description=a.description,
                                       created=stamp, modified=stamp,
                                       relationship=a.relationship, url_fetcher=fetcher)
                 for a in attachments]
