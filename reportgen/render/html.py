@@ -113,4 +113,22 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
                 logo: str | None = None, extra_hook: Any = None) -> str:
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
     template = env.get_template("package.html")
-    return template.render(doc=doc, info=doc.info, logo=logo)
+    return template.render(doc=doc, info=doc.info, logo=logo,
+                           watermark=watermark_uri(doc.review_state),
+                           watermark_text=WATERMARKS.get(doc.review_state, ""))
+
+
+WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED"}
+
+
+def watermark_uri(review_state: str) -> str:
+    """A page-sized SVG with the diagonal review mark, used as every page's background."""
+    text = WATERMARKS.get(review_state)
+    if not text:
+        return ""
+    svg = ('<svg xmlns="http://www.w3.org/2000/svg" width="210mm" height="297mm"'
+           ' viewBox="0 0 210 297"><text x="105" y="160" text-anchor="middle"'
+           ' font-family="DejaVu Sans" font-weight="bold" font-size="15"'
+           ' fill="#a01e1e" fill-opacity="0.14" transform="rotate(-52 105 160)">'
+           f'{text}</text></svg>')
+    return data_uri(svg.encode("utf-8"))
