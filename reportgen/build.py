@@ -70,9 +70,12 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
     ct = reg.calc_type
     ctx = calc_context(spec, units)
 
+    # name the plugin as installed (its entry point), and the calc type when it differs
+    about = "" if reg.plugin == reg.name else f"calc type '{reg.name}': "
+
     def fail(message: str, stage: str, cause: BaseException | None = None) -> PluginError:
-        err = PluginError(message, plugin=reg.name, package=reg.package, calc=spec.id,
-                          stage=stage)
+        err = PluginError(about + message, plugin=reg.plugin, package=reg.package,
+                          calc=spec.id, stage=stage)
         err.__cause__ = cause
         return err
 
@@ -103,9 +106,9 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
                 f"{r.quantity}: closed form {r.closed_form:.6g}, independent {r.independent:.6g}"
                 f" (relative difference {r.rel_difference:.2e} > tolerance {r.tolerance:.1e})"
                 for r in disagree)
-            raise VerificationError(f"independent verification disagrees: {text}; a package"
-                                    " whose two methods disagree is not issued",
-                                    plugin=reg.name, package=reg.package, calc=spec.id,
+            raise VerificationError(f"{about}independent verification disagrees: {text}; a"
+                                    " package whose two methods disagree is not issued",
+                                    plugin=reg.plugin, package=reg.package, calc=spec.id,
                                     stage="verify")
         verification = rows
     inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given))
