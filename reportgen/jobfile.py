@@ -180,7 +180,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
 
 _AT = re.compile(r"\(at line (\d+), column (\d+)\)")
 _HEADER = re.compile(r"^\s*(\[\[?)\s*([A-Za-z0-9_.\-\s\"]+?)\s*\]\]?")
-_KEY = re.compile(r"^\s*([A-Za-z0-9_\-]+)\s*=")
+_KEY = re.compile(r"^\s*([A-Za-z0-9_\-]+)\s*(?:=|\s|$)")
 _CALC_ID = re.compile(r"^\s*id\s*=\s*[\"']([^\"']*)[\"']")
 
 
@@ -192,7 +192,9 @@ def _syntax_problem(fname: str, text: str, exc: Exception) -> Problem:
     lineno = int(at.group(1)) if at else _duplicate_key_line(lines)
     if at is None and lineno:
         message = message.replace("(at end of document)", "").strip()
-        message += f" (at line {lineno}: the key is given twice)"
+        message += f" (at line {lineno})"
+    if message.startswith("Cannot overwrite a value"):
+        message += ": a key is given twice in the same table"
     calc, field = "", ""
     if lineno:
         table, block_start = "", None
@@ -212,10 +214,16 @@ def _syntax_problem(fname: str, text: str, exc: Exception) -> Problem:
                     calc = m.group(1)
                     break
             calc = calc or "?"
-        k = _KEY.match(lines[lineno - 1]) if lineno <= len(lines) else None
-        prefix = table.split(".", 1)[1] + "." if table.startswith("calc.") else (
-            "" if table == "calc" else (table + "." if table else ""))
-        field = prefix + k.group(1) if k else table
+        bad = lines[lineno - 1] if lineno <= len(lines) else ""
+        if bad.lstrip().startswith("["):  # the table header itself is broken
+            table, key = bad.strip().strip("[]").replace(" ", ""), ""
+        else:
+            k = _KEY.match(bad)
+            key = k.group(1) if k else ""
+        # fields are named as in other messages: "inputs.mass", "package.title"
+        scope = table.split(".", 1)[1] if table.startswith("calc.") else (
+            "" if table == "calc" else table)
+        field = ".".join(part for part in (scope, key) if part) or table
     return Problem(fname, f"TOML syntax error: {message}", calc, field)
 
 
@@ -443,7 +451,10 @@ class _Validator:
             if key not in CALC_KEYS:
                 self.add(f"unknown field '{key}'{_nearest(key, sorted(CALC_KEYS))}",
                          calc=label, field=key)
-        if not isinstance(cid, str) or not cid:
+        if cid is not None and not isinstance(cid, str):
+            self.add(f"expected text such as \"pump-p1\", found {type(cid).__name__}"
+                     f" {_short(cid)}", calc=label, field="id")
+        elif not cid:
             self.add("required field 'id' is missing", calc=label, field="id")
         elif not _ID.match(cid) or len(cid) > 64:
             self.add(f"id {cid!r} must be lowercase letters, digits and single '-'"
@@ -457,7 +468,11 @@ class _Validator:
         notes = self._text(c, "notes", "", False, calc=label)
         plugin = c.get("plugin")
         reg = None
-        if not isinstance(plugin, str) or not plugin:
+        if plugin is not None and not isinstance(plugin, str):
+            self.add(f"expected the name of a calc type, found {type(plugin).__name__}"
+                     f" {_short(plugin)}; known calc types: " + ", ".join(plugins.names()),
+                     calc=label, field="plugin")
+        elif not plugin:
             self.add("required field 'plugin' is missing; known calc types: "
                      + ", ".join(plugins.names()), calc=label, field="plugin")
         else:
@@ -579,7 +594,8 @@ def _example(spec: InputSpec, n: int = 1) -> str:
         return "a whole number"
     if dim.name == "dimensionless":
         return "a plain number"
-    return f"for example \"{n} {dim.example.split()[0]}\"" if n == 1 else f"{n} {dim.example.split()[0]}"
+    unit = dim.example.split()[0]
+    return f"for example \"{n} {unit}\"" if n == 1 else f"{n} {unit}"
 
 
 def _short(raw: Any) -> str:

@@ -6,8 +6,11 @@ its self-check; outputs go to temporary files in the output folder and are renam
 
 from __future__ import annotations
 
+import glob
 import os
+import signal
 import tempfile
+import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -95,6 +98,7 @@ def render_package(doc: Document, job: Job, opts: BuildOptions, results: bytes,
 
 def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
     job = load_job(path, plugins)
+    check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
     if not opts.force:
         existing = [p for p in (pdf_path, results_path) if p.exists()]
@@ -115,13 +119,18 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
         from .selfcheck import self_check
 
         self_check(pdf, doc)
-    opts.out_dir.mkdir(parents=True, exist_ok=True)
+    outputs = [(results_path, results), (pdf_path, pdf)]
     html_path = None
     if opts.html:
         html_path = opts.out_dir / f"{job.stem}.html"
-        atomic_write(html_path, html.encode("utf-8"))
-    atomic_write(results_path, results)
-    atomic_write(pdf_path, pdf)
+        outputs.insert(0, (html_path, html.encode("utf-8")))
+    try:
+        sweep_stale_parts(opts.out_dir, [p for p, _ in outputs])
+        commit_outputs(outputs)
+    except OSError as exc:
+        raise JobError(Problem(str(path), f"cannot write the package into {opts.out_dir}:"
+                               f" {exc.strerror or exc}",
+                               field="--out")) from None
     code = ExitCode.CHECKS_FAIL if doc.failed else ExitCode.OK
     return BuildResult(job=path, pdf=pdf_path, results=results_path, status=doc.status,
                        exit_code=code, checks_total=len(doc.design_checks),
@@ -129,6 +138,104 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
                        title=job.info.title, calc_number=job.info.calc_number,
                        revision=job.info.revision, html=html_path,
                        extra={"date": job.info.date})
+
+
+def check_out_dir(out_dir: Path, job_path: Path) -> None:
+    """Refuse an output folder that is a file (or lies under one) before any work is done."""
+    for folder in (out_dir, *out_dir.parents):
+        if folder.exists():
+            if not folder.is_dir():
+                raise JobError(Problem(str(job_path), f"the output folder {out_dir} cannot be"
+                                       f" created: {folder} is a file, not a folder",
+                                       field="--out"))
+            return
+
+
+#: temporary files older than this are left over from a killed build, not in progress
+STALE_PART_SECONDS = 60.0
+
+
+def sweep_stale_parts(out_dir: Path, targets: list[Path], *,
+                      now: float | None = None) -> list[Path]:
+    """Remove ``.NAME.*.part`` files a killed build left beside ``targets``; return them.
+
+    Only old ones go: a younger one may belong to a build running at the same time.
+    """
+    if not out_dir.is_dir():
+        return []
+    now = time.time() if now is None else now
+    removed = []
+    for target in targets:
+        for part in out_dir.glob(f".{glob.escape(target.name)}.*.part"):
+            try:
+                if part.is_file() and not part.is_symlink() and (
+                        now - part.stat().st_mtime > STALE_PART_SECONDS):
+                    part.unlink()
+                    removed.append(part)
+            except OSError:
+                pass  # another build swept it first
+    return removed
+
+
+def commit_outputs(outputs: list[tuple[Path, bytes]]) -> None:
+    """Write every output to a synced temporary file, then rename them all into place.
+
+    The renames run with SIGINT and SIGTERM held back, so an interrupt lands before the
+    first rename (old package untouched) or after the last (new package complete).
+    """
+    temps: list[tuple[str, Path]] = []
+    try:
+        for target, data in outputs:
+            temps.append((_write_temp(target, data), target))
+        held = {signal.SIGINT, signal.SIGTERM}
+        old_mask = signal.pthread_sigmask(signal.SIG_BLOCK, held)
+        try:
+            for tmp, target in temps:
+                os.replace(tmp, target)
+            _fsync_dir(outputs[0][0].parent)
+        finally:
+            signal.pthread_sigmask(signal.SIG_SETMASK, old_mask)
+    except BaseException:
+        for tmp, _ in temps:
+            try:
+                os.unlink(tmp)
+            except OSError:
+                pass
+        raise
+
+
+def _write_temp(target: Path, data: bytes) -> str:
+    target.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+    try:
+        umask = os.umask(0)
+        os.umask(umask)
+        os.fchmod(fd, 0o666 & ~umask)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+    return tmp
+
+
+def _fsync_dir(folder: Path) -> None:
+    # the renames themselves reach the disk only once the folder is synced
+    try:
+        fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)
 
 
 def atomic_write(target: Path, data: bytes) -> None:
