@@ -8,6 +8,7 @@ A firm's folder (``[package] template_dir`` or ``--template-dir``) may hold any 
 from __future__ import annotations
 
 import base64
+import re
 from pathlib import Path
 from typing import Any
 
@@ -25,21 +26,32 @@ def firm_logo(template_dir: Path | None) -> str | None:
         if path.is_file() and not path.is_symlink() and path.stat().st_size < 2_000_000:
             data = path.read_bytes()
             if mime == "image/svg+xml":
-                data = _sanitise_svg(data)
+                data = _sanitise_svg(data, path)
             return f"data:{mime};base64," + base64.b64encode(data).decode("ascii")
     return None
 
 
-def _sanitise_svg(data: bytes) -> bytes:
-    """Refuse SVG that can fetch or script: WeasyPrint swallows fetch errors inside SVG."""
-    low = data.lower()
-    for bad in (b"<script", b"xlink:href=\"http", b"href=\"http", b"href=\"file",
-                b"xlink:href=\"file", b"<image", b"@import", b"<!entity", b"<foreignobject"):
-        if bad in low:
-            from .errors import RenderError
+# What lets an SVG fetch or run something. Any href or url() must point inside the
+# logo itself ("#id"); quotes, case and spacing vary, so match loosely.
+_SVG_REFUSED = re.compile(
+    rb"<\s*(?:script|image|foreignobject|feimage|iframe|object|embed|audio|video)\b"
+    rb"|<!\s*entity|@import"
+    rb"|\bhref\s*=\s*[\"']?\s*(?!#)[^\s\"'>]"
+    rb"|url\(\s*[\"']?\s*(?!#)[^\s\"')]",
+    re.IGNORECASE)
 
-            raise RenderError(f"firm logo SVG contains {bad.decode()!r}; only self-contained"
-                              " vector logos are accepted")
+
+def _sanitise_svg(data: bytes, path: Path | None = None) -> bytes:
+    """Refuse SVG that can fetch or script: WeasyPrint swallows fetch errors inside SVG."""
+    bad = _SVG_REFUSED.search(data)
+    if bad is not None:
+        from .errors import RenderError
+
+        found = bad.group(0).decode("utf-8", "replace")
+        raise RenderError(f"firm logo {path or 'SVG'} contains {found!r}: only self-contained"
+                          " vector logos"
+                          " are accepted (no images, scripts, imports or links outside the"
+                          " file)")
     return data
 
 

@@ -36,7 +36,9 @@ def _fetcher_class():
 
         def __init__(self, root: Path | None, extra_roots: tuple[Path, ...] = ()):
             super().__init__(allowed_protocols={"data", "file"}, allow_redirects=False)
-            self.roots = tuple(r.resolve() for r in ((root,) if root else ()) + extra_roots)
+            roots = (r.resolve() for r in ((root,) if root else ()) + extra_roots)
+            # a job saved at the top of the file system must not open the whole machine
+            self.roots = tuple(r for r in roots if r != Path(r.anchor))
             self.refused: list[str] = []
 
         def fetch(self, url, headers=None):
