@@ -36,17 +36,32 @@ hookimpl = pluggy.HookimplMarker(PROJECT)
 def reportgen_register_calc_types(context: dict[str, Any]) -> list[CalcType]:
     """Return the calc types this plugin provides.
 
-    Called once when the plugin manager loads. Each calc type is an instance of a
+    Called once per plugin when the plugin manager loads, outside pluggy's hook loop,
+    so one plugin's failure cannot hide another's. Each calc type is an instance of a
     :class:`reportgen.CalcType` subclass with a unique ``name`` (what a job file's
     ``plugin = "..."`` names), a ``version``, an ``api_version``, its ``inputs`` and
     ``criteria`` as :class:`reportgen.InputSpec`, and a ``compute`` method. Add
     ``verify`` for the independent second method that fills the Verification appendix,
     and ``sources`` / ``verification_cases`` for the software identification section.
 
-    A calc type name declared by two plugins is refused at load (exit 2).
+    Example::
+
+        @hookimpl
+        def reportgen_register_calc_types(context):
+            return [MountLoads()]
+
+    What the core does with the answer:
+
+    - a calc type whose ``api_version`` is not in :data:`SUPPORTED_API_VERSIONS` is
+      refused and listed as broken by ``reportgen plugins``, with both versions;
+    - a calc type name declared by two plugins is a conflict: builds refuse to start
+      (exit 2) and the message names both plugins and their packages;
+    - if this hook raises, or the module fails to import, the plugin is listed as
+      broken with its error and every other plugin still loads.
 
     :param context: read-only facts about the core: ``{"api_version": int,
-        "reportgen_version": str}``.
+        "reportgen_version": str}``. It may gain keys; ignore the ones you do not use.
+        The implementation may also omit the argument.
     :returns: a list of calc type instances (may be empty).
 
     .. versionadded:: API 1
@@ -60,10 +75,21 @@ def reportgen_register_calc_types(context: dict[str, Any]) -> list[CalcType]:
 def reportgen_prepare_jinja_env(env: Any, context: dict[str, Any]) -> None:
     """Adjust the Jinja2 environment before the package is rendered.
 
-    Use it to add filters or globals that a firm's own templates need. Do not turn
-    autoescaping off and do not mark job text safe: job files are untrusted.
+    Called once per package, after the built-in globals and filters are installed and
+    before any template is loaded. Use it to add filters or globals that a firm's own
+    templates (``cover.html``, ``running.html``, see :mod:`reportgen.templates`) need.
+    Do not turn autoescaping off and do not mark job text safe: job files are untrusted.
+    Each plugin's implementation is called on its own; if one raises, the build stops
+    with a PluginError naming that plugin and its package (exit 3, nothing written).
 
-    :param env: the :class:`jinja2.Environment` (sandboxed, autoescaping, strict).
+    Example::
+
+        @hookimpl
+        def reportgen_prepare_jinja_env(env, context):
+            env.globals["firm_tagline"] = "Vibration and acoustics since 1994"
+
+    :param env: the :class:`jinja2.Environment` (autoescaping, ``StrictUndefined``,
+        loading the firm's template folder first, then the built-in templates).
     :param context: ``{"api_version": int, "units": "SI" | "US"}``.
     :returns: nothing; modify ``env`` in place.
 

@@ -22,7 +22,7 @@ from typing import Any
 import pytest
 
 from .build import compute_document
-from .calc import CalcType
+from .calc import CalcOutput, CalcType
 from .formula import evaluate, names_in
 from .jobfile import Job, load_job
 from .model import Document, Equation, Section
@@ -170,12 +170,19 @@ def build_package(job: Mapping[str, Any], folder: Path, *, plugins: PluginSet | 
 # ------------------------------------------------------------------ contract
 
 
-def assert_equations_reproduce(doc: Document, rel: float = 2e-3) -> int:
+def assert_equations_reproduce(doc: Document | CalcOutput, rel: float = 2e-3) -> int:
     """Every equation, re-evaluated from its operands rounded as printed (6 significant
-    figures), reproduces its printed result (4 significant figures). Returns the count."""
+    figures), reproduces its printed result (4 significant figures). Returns the count.
+
+    ``doc`` is a computed Document, or the CalcOutput of a direct ``compute(ctx)`` call.
+    """
     count = 0
-    for section in doc.sections:
-        for block in section.blocks:
+    if isinstance(doc, CalcOutput):
+        groups = [("compute output", doc.blocks, {r.key for r in doc.results})]
+    else:
+        groups = [(s.calc_id, s.blocks, set(section_results(s))) for s in doc.sections]
+    for calc_id, blocks, result_keys in groups:
+        for block in blocks:
             if not isinstance(block, Equation):
                 continue
             assert names_in(block.expression) == {n for n, _ in block.operands}, block
@@ -184,14 +191,16 @@ def assert_equations_reproduce(doc: Document, rel: float = 2e-3) -> int:
             printed = float(format_number(block.result.value, 4))
             exact = evaluate(block.expression, dict(block.operands))
             assert math.isclose(exact, block.result.value, rel_tol=1e-12, abs_tol=1e-300), (
-                f"{section.calc_id}: {block.name} = {block.expression}: stored result"
+                f"{calc_id}: {block.name} = {block.expression}: stored result"
                 f" {block.result.value} is not the expression's value {exact}")
             tol = max(rel * abs(printed), 1e-12 + 5e-4 * abs(printed))
             assert abs(again - printed) <= tol or abs(again - block.result.value) <= tol, (
-                f"{section.calc_id}: {block.name} = {block.expression}: printed operands give"
+                f"{calc_id}: {block.name} = {block.expression}: printed operands give"
                 f" {again}, printed result is {printed}")
             if block.result_key:
-                assert block.result_key in section_results(section)
+                assert block.result_key in result_keys, (
+                    f"{calc_id}: {block.name} names result {block.result_key!r}, which the"
+                    " calc does not report")
             count += 1
     return count
 
