@@ -48,6 +48,10 @@ def job_schema(plugins: PluginSet) -> dict[str, Any]:
     text = {"type": "string"}
     package_props: dict[str, Any] = {k: dict(text) for k in PACKAGE_KEYS}
     package_props["units"] = {"enum": ["SI", "US"]}
+    package_props["attachments"] = {
+        "type": "array", "maxItems": 20, "uniqueItems": True,
+        "items": {"type": "string", "description": "a file inside the job's folder, embedded"
+                  " in the package"}}
     package_props["revision_history"] = {"type": "array", "items": {
         "type": "object", "required": ["revision", "description"],
         "properties": {"revision": text, "date": text, "description": text, "by": text},
