@@ -5,7 +5,7 @@ from __future__ import annotations
 from typing import Any
 
 from .calc import InputSpec
-from .jobfile import CALC_KEYS, PACKAGE_KEYS
+from .jobfile import CALC_KEYS, MAX_ATTACHMENTS, PACKAGE_KEYS
 from .plugins import PluginSet
 from .units import DIMENSIONS
 
@@ -49,7 +49,7 @@ def job_schema(plugins: PluginSet) -> dict[str, Any]:
     package_props: dict[str, Any] = {k: dict(text) for k in PACKAGE_KEYS}
     package_props["units"] = {"enum": ["SI", "US"]}
     package_props["attachments"] = {
-        "type": "array", "maxItems": 20, "uniqueItems": True,
+        "type": "array", "maxItems": MAX_ATTACHMENTS, "uniqueItems": True,
         "items": {"type": "string", "description": "a file inside the job's folder, embedded"
                   " in the package"}}
     package_props["revision_history"] = {"type": "array", "items": {
