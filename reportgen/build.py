@@ -111,10 +111,12 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
                                     plugin=reg.plugin, package=reg.package, calc=spec.id,
                                     stage="verify")
         verification = rows
-    inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given))
+    inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
+                                                spec.raw_inputs))
     blocks = (inputs_block,)
     if spec.criteria or ct.criteria:
-        crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given)
+        crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given,
+                                spec.raw_criteria)
         if crit_rows:
             blocks += (InputsTable(rows=crit_rows, title="Design criteria"),)
     return Section(
@@ -125,14 +127,16 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
         sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
 
 
-def _input_rows(specs: tuple[InputSpec, ...], values: dict[str, Any],
-                given: frozenset[str]) -> tuple[InputRow, ...]:
+def _input_rows(specs: tuple[InputSpec, ...], values: dict[str, Any], given: frozenset[str],
+                raw: dict[str, Any]) -> tuple[InputRow, ...]:
     rows = []
     for sp in specs:
         if sp.name not in values:
             continue
         value = values[sp.name]
-        source = "job file" if sp.name in given else (
+        written = raw.get(sp.name)
+        source = (f"job file: {written}" if isinstance(written, (str, int, float))
+                  and not isinstance(written, bool) else "job file") if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
         if sp.kind in ("pair", "points"):
             flat = [v for v in _flatten(value)]
