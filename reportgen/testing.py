@@ -103,6 +103,7 @@ def job_toml(job: Mapping[str, Any]) -> str:
 def load_job_dict(job: Mapping[str, Any], plugins: PluginSet, folder: Path) -> Job:
     text = job_toml(job)
     tomllib.loads(text)  # the kit must write valid TOML
+    folder.mkdir(parents=True, exist_ok=True)
     path = folder / "job.toml"
     path.write_text(text, encoding="utf-8")
     return load_job(path, plugins)
