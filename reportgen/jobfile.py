@@ -158,7 +158,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     if not isinstance(calcs_raw, list) or not all(isinstance(c, dict) for c in calcs_raw):
         v.add("'calc' must be an array of tables: write each calc as [[calc]]", field="calc")
         calcs_raw = []
-    if not calcs_raw and "calc" not in raw:
+    if not calcs_raw and isinstance(raw.get("calc", []), list):  # absent, or calc = []
         v.add("the job has no [[calc]] tables; a package needs at least one calc",
               field="calc")
     if len(calcs_raw) > MAX_CALCS:
