@@ -368,6 +368,40 @@ def test_verify_a_folder_skips_other_pdfs_and_summarises(work, builds, rev_a, tm
     assert "verified 2 packages: 2 agree, 0 differ, 0 could not be verified" in out
 
 
+def _rewrite_manifest(src: Path, dst: Path, edit) -> Path:
+    with pikepdf.open(src) as pdf:
+        manifest = json.loads(pdf.attachments["manifest.json"].get_file().read_bytes())
+        edit(manifest)
+        pdf.attachments["manifest.json"] = pikepdf.AttachedFileSpec(
+            pdf, json.dumps(manifest).encode(), filename="manifest.json")
+        pdf.save(dst)
+    return dst
+
+
+def test_verify_reports_environment_differences_as_information(work, builds, tmp_path,
+                                                                capsys):
+    def older(m):
+        m["libraries"]["numpy"] = "1.0.0"
+        m["plugins"]["free_vibration"]["version"] = "0.0.1"
+
+    edited = _rewrite_manifest(_pdf(work, "hb-cold"), tmp_path / "older.pdf", older)
+    assert main(["verify", str(edited)]) == 0
+    out = capsys.readouterr().out
+    assert "info: environment differs: numpy: 1.0.0 at build" in out
+    assert "calc type free_vibration: 0.0.1 (reportgen) at build" in out
+
+
+def test_verify_refuses_a_manifest_path_that_leaves_the_folder(work, builds, tmp_path,
+                                                               capsys):
+    def escape(m):
+        m["attachments"][0]["path"] = "../../evil.csv"
+
+    edited = _rewrite_manifest(_pdf(work, "hb-cold"), tmp_path / "escape.pdf", escape)
+    assert main(["verify", str(edited)]) == 2
+    assert "unsafe" in capsys.readouterr().err
+    assert not (tmp_path.parent / "evil.csv").exists()
+
+
 # ---------------------------------------------------------------- diff
 
 def test_diff_two_revisions_of_the_sample_job(capsys, check_cases):
