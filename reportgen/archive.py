@@ -101,10 +101,18 @@ def changes_since(doc: Document, job: Job) -> Document:
     from .results import results_data
 
     assert job.previous_package is not None
-    previous = read_package_files(job.previous_package)
+    try:
+        previous = read_package_files(job.previous_package)
+    except JobError as exc:
+        raise JobError([Problem(str(job.path), f"previous package {pr.file}: {pr.message}",
+                                field="package.previous_package")
+                        for pr in exc.problems]) from None
     lines = describe_changes(previous.results, results_data(doc),
                              previous_job=previous.job_raw, new_job=dict(job.raw))
     prev_pkg = previous.results.get("package", {})
+    if prev_pkg.get("calc_number") != job.info.calc_number:
+        lines.insert(0, f"The previous package is calc {prev_pkg.get('calc_number', '?')},"
+                        f" not {job.info.calc_number}: check [package] previous_package.")
     label = str(prev_pkg.get("revision", "")) or "?"
     if prev_pkg.get("date"):
         label += f" ({prev_pkg['date']})"

@@ -511,3 +511,14 @@ def test_a_bad_attachment_stops_the_build_with_exit_2(tmp_path, capsys):
     err = capsys.readouterr().err
     assert "package.attachments[0]" in err and "Traceback" not in err
     assert not (tmp_path / "out").exists()
+
+
+def test_a_previous_package_that_is_not_ours_stops_the_build_with_exit_2(tmp_path, capsys):
+    _crafted(tmp_path / "prev.pdf", [])
+    job = tmp_path / "job.toml"
+    job.write_text(_with_package_keys(SAMPLE_B.read_text(encoding="utf-8"),
+                                      'previous_package = "prev.pdf"'), encoding="utf-8")
+    assert main(["build", str(job), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err
+    assert "package.previous_package" in err and "not a reportgen package" in err
+    assert not (tmp_path / "out").exists()
