@@ -7,8 +7,11 @@ renders, never for --help, plugins, check or schema.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import os
+import signal
 import sys
+import threading
 import traceback
 from collections.abc import Sequence
 from pathlib import Path
@@ -106,14 +109,16 @@ def main(argv: Sequence[str] | None = None) -> int:
         return ExitCode.INVALID_INPUT
     debug = bool(getattr(args, "debug", False))
     try:
-        return int(_dispatch(args))
+        with _terminate_as_interrupt(args.command in ("build", "demo")):
+            return int(_dispatch(args))
     except ReportgenError as exc:
         if debug:
             traceback.print_exc()
         _print_error(exc)
         return int(exc.exit_code)
     except KeyboardInterrupt:
-        print(f"{PROG}: interrupted; nothing was written under a final name", file=sys.stderr)
+        print(f"{PROG}: interrupted; no partial package was left under a final name",
+              file=sys.stderr)
         return 130
     except Exception as exc:  # a bug: say so plainly, traceback only on request
         if debug:
@@ -121,6 +126,23 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(f"{PROG}: internal error: {type(exc).__name__}: {exc}"
               " (run with --debug for the traceback)", file=sys.stderr)
         return int(ExitCode.FAILURE)
+
+
+@contextlib.contextmanager
+def _terminate_as_interrupt(active: bool):
+    """During a build, SIGTERM unwinds like Ctrl-C so temporary files are removed."""
+    if not active or threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def interrupt(signum, frame):
+        raise KeyboardInterrupt
+
+    previous = signal.signal(signal.SIGTERM, interrupt)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
 
 
 def _print_error(exc: ReportgenError) -> None:

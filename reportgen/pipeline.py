@@ -6,10 +6,12 @@ its self-check; outputs go to temporary files in the output folder and are renam
 
 from __future__ import annotations
 
+import contextlib
 import glob
 import os
 import signal
 import tempfile
+import threading
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -79,14 +81,17 @@ def render_package(doc: Document, job: Job, opts: BuildOptions, results: bytes,
                    plugins: PluginSet | None = None) -> tuple[bytes, str]:
     """Return (pdf bytes, html) for a computed document."""
     from .archive import manifest_bytes
-    from .render.assets import render_assets
+    from .render.assets import start_assets
     from .render.html import render_html
-    from .render.pdf import write_pdf
+    from .render.pdf import preload_renderer, write_pdf
     from .templates import firm_logo, jinja_hook
 
     template_dir = opts.template_dir or job.template_dir
-    assets = render_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
+    pending = start_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
                            workers=opts.workers)
+    if pending.parallel:
+        preload_renderer()  # import WeasyPrint while the workers draw
+    assets = pending.result()
     html = render_html(doc, assets, template_dir=template_dir,
                        logo=firm_logo(template_dir), extra_hook=jinja_hook(doc, plugins))
     files = embedded_files(job, results, manifest_bytes(doc, job, results))
@@ -187,14 +192,10 @@ def commit_outputs(outputs: list[tuple[Path, bytes]]) -> None:
     try:
         for target, data in outputs:
             temps.append((_write_temp(target, data), target))
-        held = {signal.SIGINT, signal.SIGTERM}
-        old_mask = signal.pthread_sigmask(signal.SIG_BLOCK, held)
-        try:
+        with _interrupts_held():
             for tmp, target in temps:
                 os.replace(tmp, target)
             _fsync_dir(outputs[0][0].parent)
-        finally:
-            signal.pthread_sigmask(signal.SIG_SETMASK, old_mask)
     except BaseException:
         for tmp, _ in temps:
             try:
@@ -202,6 +203,32 @@ def commit_outputs(outputs: list[tuple[Path, bytes]]) -> None:
             except OSError:
                 pass
         raise
+
+
+@contextlib.contextmanager
+def _interrupts_held():
+    """Hold SIGINT and SIGTERM back for the block, then act on them as usual.
+
+    A Python-level handler, not a signal mask: the mask is per thread, and a signal sent
+    to the process may land on any thread (the renderer's, the pool's).
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield  # only the main thread may set handlers; worker builds are not signalled
+        return
+    caught: list[int] = []
+    held = (signal.SIGINT, signal.SIGTERM)
+    previous = {s: signal.signal(s, lambda signum, frame: caught.append(signum)) for s in held}
+    try:
+        yield
+    finally:
+        for s, handler in previous.items():
+            signal.signal(s, handler)
+        if caught:
+            handler = previous[caught[0]]
+            if callable(handler):
+                handler(caught[0], None)
+            elif handler == signal.SIG_DFL:
+                signal.raise_signal(caught[0])
 
 
 def _write_temp(target: Path, data: bytes) -> str:
