@@ -11,7 +11,8 @@ import hashlib
 import json
 import os
 from collections.abc import Iterable
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import Future, ProcessPoolExecutor
+from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -19,7 +20,9 @@ from ..model import Document, Equation, Figure, to_json
 from .html import data_uri
 
 #: Bump when the drawing code changes, so cached assets of the old look are not reused.
-RENDERER_TAG = "assets/3"
+RENDERER_TAG = "assets/4"
+#: Below this many assets a pool's start-up (~50 ms a worker) costs more than it saves.
+MIN_PARALLEL = 6
 
 
 def default_cache_dir() -> Path:
@@ -30,11 +33,12 @@ def default_cache_dir() -> Path:
     return Path(base) / "reportgen"
 
 
+@lru_cache(maxsize=1)
 def _versions() -> str:
     from importlib import metadata
 
     parts = []
-    for dist in ("matplotlib", "ziamath"):
+    for dist in ("matplotlib", "ziamath", "fonttools"):
         try:
             parts.append(f"{dist}={metadata.version(dist)}")
         except metadata.PackageNotFoundError:
@@ -54,12 +58,19 @@ def _render_one(job: tuple[str, Any, str]) -> bytes:
         from .figures import figure_svg
 
         return figure_svg(block, units)
-    from .math import equation_latex, latex_svg
+    from .math import equation_latex
+    from .mathsvg import latex_svg
 
     return latex_svg(equation_latex(block, units))
 
 
+def _render_many(jobs: list[tuple[str, Any, str]]) -> list[bytes]:
+    return [_render_one(j) for j in jobs]
+
+
 class AssetCache:
+    """Content-addressed files ``KEY[:2]/KEY.svg``: a SHA-256 line, then the payload."""
+
     def __init__(self, folder: Path | None):
         self.folder = folder
 
@@ -89,6 +100,12 @@ class AssetCache:
             pass  # a read-only or full cache folder only costs speed
 
 
+class Assets(dict):
+    """{block: data URI}, plus the style sheet the equations need (their math font)."""
+
+    css: str = ""
+
+
 def iter_asset_blocks(doc: Document) -> Iterable[tuple[str, Equation | Figure]]:
     for section in doc.sections:
         for block in section.blocks:
@@ -98,48 +115,108 @@ def iter_asset_blocks(doc: Document) -> Iterable[tuple[str, Equation | Figure]]:
                 yield "equation", block
 
 
-def render_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,
-                  workers: int = 1) -> dict[Any, str]:
-    """Return {block: data URI} for every figure and equation of ``doc``."""
-    units = doc.info.units
+class PendingAssets:
+    """Assets being drawn in worker processes; :meth:`result` waits and assembles them.
+
+    Started before the PDF renderer is imported, so the workers draw while the main
+    process imports WeasyPrint (about 0.6 s of work that would otherwise come first).
+    """
+
+    def __init__(self, doc: Document, cache: AssetCache, workers: int):
+        self.units = doc.info.units
+        self.cache = cache
+        self.payloads: dict[str, bytes] = {}
+        self.keys: dict[Any, tuple[str, str]] = {}
+        todo: dict[str, tuple[str, Any]] = {}
+        for kind, block in iter_asset_blocks(doc):
+            if block in self.keys:
+                continue
+            key = asset_key(block, self.units)
+            self.keys[block] = (kind, key)
+            if key in self.payloads or key in todo:
+                continue
+            cached = cache.get(key)
+            if cached is not None:
+                self.payloads[key] = cached
+            else:
+                todo[key] = (kind, block)
+        self.todo = todo
+        self._pool: ProcessPoolExecutor | None = None
+        self._futures: list[tuple[list[str], Future]] = []
+        jobs = [(key, (kind, block, self.units)) for key, (kind, block) in todo.items()]
+        if workers > 1 and len(jobs) >= MIN_PARALLEL:
+            self._start(jobs, workers)
+        else:
+            self._serial = jobs
+
+    @property
+    def parallel(self) -> bool:
+        return self._pool is not None
+
+    def _start(self, jobs: list[tuple[str, Any]], workers: int) -> None:
+        import multiprocessing
+
+        # Figures cost ~5x an equation: deal them out first, then equations in chunks,
+        # so the workers finish together. Fork: workers inherit the loaded modules.
+        jobs = sorted(jobs, key=lambda j: j[1][0] != "figure")
+        ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
+        n = min(workers, len(jobs))
+        self._pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx)
+        chunks: list[list[tuple[str, Any]]] = []
+        figs = [j for j in jobs if j[1][0] == "figure"]
+        eqs = [j for j in jobs if j[1][0] != "figure"]
+        chunks += [[j] for j in figs]
+        size = max(1, len(eqs) // (n * 3) or 1)
+        chunks += [eqs[i:i + size] for i in range(0, len(eqs), size)]
+        for chunk in chunks:
+            fut = self._pool.submit(_render_many, [j for _, j in chunk])
+            self._futures.append(([k for k, _ in chunk], fut))
+        self._serial = []
+
+    def result(self) -> Assets:
+        fresh: dict[str, bytes] = {}
+        try:
+            for keys, fut in self._futures:
+                fresh.update(zip(keys, fut.result(), strict=True))
+        finally:
+            if self._pool is not None:
+                self._pool.shutdown(wait=True, cancel_futures=True)
+                self._pool = None
+        for key, job in self._serial:
+            fresh[key] = _render_one(job)
+        for key, payload in fresh.items():
+            self.cache.put(key, payload)
+        self.payloads.update(fresh)
+        out = Assets()
+        for block, (_kind, key) in self.keys.items():
+            out[block] = data_uri(self.payloads[key])
+        out.css = self._math_css()
+        return out
+
+    def _math_css(self) -> str:
+        from .mathsvg import font_face_css, font_key, subset_font, used_chars
+
+        eq_keys = {key for kind, key in self.keys.values() if kind == "equation"}
+        chars = used_chars(self.payloads[k] for k in sorted(eq_keys))
+        if not chars:
+            return ""
+        key = font_key(chars)
+        font = self.cache.get(key)
+        if font is None:
+            font = subset_font(chars)
+            self.cache.put(key, font)
+        return font_face_css(font)
+
+
+def start_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,
+                 workers: int = 1) -> PendingAssets:
     cache = AssetCache((cache_dir or default_cache_dir()) if use_cache else None)
-    out: dict[Any, str] = {}
-    todo: dict[str, tuple[str, Any]] = {}
-    keys: dict[Any, str] = {}
-    for kind, block in iter_asset_blocks(doc):
-        if block in keys:
-            continue
-        key = asset_key(block, units)
-        keys[block] = key
-        cached = cache.get(key)
-        if cached is not None:
-            out[block] = data_uri(cached)
-        else:
-            todo.setdefault(key, (kind, block))
-    if todo:
-        jobs = [(kind, block, units) for kind, block in todo.values()]
-        n_fig = sum(1 for j in jobs if j[0] == "figure")
-        if workers > 1 and n_fig >= 3:
-            payloads = _parallel(jobs, workers)
-        else:
-            payloads = [_render_one(j) for j in jobs]
-        rendered = dict(zip(todo, payloads, strict=True))
-        for key, payload in rendered.items():
-            cache.put(key, payload)
-        for block, key in keys.items():
-            if block not in out:
-                out[block] = data_uri(rendered[key])
-    return out
+    return PendingAssets(doc, cache, workers)
 
 
-def _parallel(jobs: list[tuple[str, Any, str]], workers: int) -> list[bytes]:
-    import multiprocessing
+def render_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,
+                  workers: int = 1) -> Assets:
+    """Return {block: data URI} for every figure and equation of ``doc``."""
+    return start_assets(doc, cache_dir=cache_dir, use_cache=use_cache,
+                        workers=workers).result()
 
-    # Figures are the slow part (~0.1 s each); equations are cheap, keep them here.
-    figs = [j for j in jobs if j[0] == "figure"]
-    ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
-    with ProcessPoolExecutor(max_workers=min(workers, len(figs)), mp_context=ctx) as pool:
-        fig_futures = [pool.submit(_render_one, j) for j in figs]
-        eqs = {id(j): _render_one(j) for j in jobs if j[0] != "figure"}
-        fig_results = iter([f.result() for f in fig_futures])
-    return [next(fig_results) if j[0] == "figure" else eqs[id(j)] for j in jobs]

@@ -113,9 +113,15 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
                 logo: str | None = None, extra_hook: Any = None) -> str:
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
     template = env.get_template("package.html")
-    return template.render(doc=doc, info=doc.info, logo=logo,
+    html = template.render(doc=doc, info=doc.info, logo=logo,
                            watermark=watermark_uri(doc.review_state),
                            watermark_text=WATERMARKS.get(doc.review_state, ""))
+    css = getattr(assets, "css", "")  # the equations' math font (render.assets.Assets)
+    if css:
+        at = html.find("</head>")
+        style = f"<style>{css}</style>\n"
+        html = html[:at] + style + html[at:] if at >= 0 else style + html
+    return html
 
 
 WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED"}

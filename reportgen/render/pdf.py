@@ -68,6 +68,13 @@ def _data_url(a: EmbeddedFile) -> str:
     return f"data:{a.mime};base64,{base64.b64encode(a.data).decode('ascii')}"
 
 
+def preload_renderer() -> None:
+    """Import WeasyPrint now (about 0.6 s), e.g. while worker processes draw figures."""
+    logging.getLogger("weasyprint").setLevel(logging.ERROR)
+    logging.getLogger("fontTools").setLevel(logging.ERROR)
+    import weasyprint  # noqa: F401
+
+
 def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFile],
               date: str, extra_roots: tuple[Path, ...] = ()) -> bytes:
     """Lay out ``html`` and return the PDF bytes (PDF/A-3b, deterministic)."""
