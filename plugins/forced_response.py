@@ -34,7 +34,7 @@ from reportgen import (
     VerificationRow,
     hookimpl,
 )
-from reportgen.units import format_number
+from reportgen.units import format_number, table_display
 
 __version__ = "0.1.0"
 
@@ -329,7 +329,7 @@ class ForcedResponse(CalcType):
         min_margin = crit["min_resonance_margin"]
         band = (fn * (1 - min_margin), fn * (1 + min_margin))
         s.add(Paragraph(title="Regime", text=_regime_text(kind, r, zeta, phi, k, c * w,
-                                                          m * w**2)))
+                                                          m * w**2, ctx.units)))
         s.add(Paragraph(text=(
             "Velocity is reported as a peak (zero-to-peak) value, V = ω·X, and as an RMS value,"
             " V/√2; the max_velocity criterion, where given, is compared with the peak value."
@@ -350,8 +350,9 @@ class ForcedResponse(CalcType):
         if "max_velocity" in crit:
             s.check("max-velocity", "Vibration velocity (peak) within the limit",
                     value=v, limit=crit["max_velocity"], comparison="<=",
-                    dimension="velocity", note=f"RMS {v_rms * 1000:.4g} mm/s; the criterion"
-                                               " is compared with the peak")
+                    dimension="velocity",
+                    note=f"RMS {_show(v_rms, 'velocity', ctx.units)}; the criterion is compared"
+                         " with the peak")
         if "max_transmitted_force" in crit:
             s.check("max-transmitted-force", "Force into the support within the limit",
                     value=f_t, limit=crit["max_transmitted_force"], comparison="<=",
@@ -362,7 +363,7 @@ class ForcedResponse(CalcType):
                     "The speed range crosses the natural frequency")
             dwell = (" With no damping the resonance amplitude is unbounded." if zeta == 0 else
                      " A slow passage approaches the steady-state resonance amplitude"
-                     f" X_res = {x_res * 1000:.3g} mm." if x_res is not None else "")
+                     f" X_res = {_show(x_res, 'length', ctx.units)}." if x_res is not None else "")
             s.add(Caution(text=(
                 f"{lead} ({fn:.4g} Hz = {fn * 60:.4g} rpm), so the system passes through"
                 " resonance at every start-up and run-down. The response while passing is"
@@ -387,9 +388,10 @@ class ForcedResponse(CalcType):
                 f" spans {time_integration_cost(r, zeta):.0f} natural periods or decay times"
                 f" (more than {MAX_ODE_COST:g}). The transfer-function check (Appendix A)"
                 " stands alone.")))
-        s.add(self._frequency_figure(kind, p, given, m, k, zeta, fn, f, band))
+        s.add(self._frequency_figure(kind, p, given, m, k, zeta, fn, f, band, ctx.units))
         if "speed_range" in p:
-            s.add(self._run_up_figure(kind, p, given, m, k, zeta, fn, f, band, crit))
+            s.add(self._run_up_figure(kind, p, given, m, k, zeta, fn, f, band, crit,
+                                      ctx.units))
         return s.output(purpose=self.purpose)
 
     # ------------------------------------------------------------------ figures
@@ -397,7 +399,8 @@ class ForcedResponse(CalcType):
     @staticmethod
     def _frequency_figure(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float,
                           k: float, zeta: float, fn: float, f: float,
-                          band: tuple[float, float]) -> Figure:
+                          band: tuple[float, float], units: str) -> Figure:
+        (lf, lu), (ff, fu) = _axis("length", units), _axis("force", units)
         rpm = kind == "unbalance"
         scale = 60.0 if rpm else 1.0
         x_hi = max(2.5 * fn, 1.5 * f, p["speed_range"][1] if "speed_range" in p else 0.0)
@@ -416,9 +419,9 @@ class ForcedResponse(CalcType):
                                  label="Z/Y, relative motion"))
             mag_label, mag_op = "Motion ratio [-]", float(op["T"][0])
         else:
-            mag_series = (Series(x=xs, y=_r(resp["X"] * 1000), label="displacement X",
+            mag_series = (Series(x=xs, y=_r(resp["X"] * lf), label="displacement X",
                                  emphasis=True),)
-            mag_label, mag_op = "Displacement X [mm]", float(op["X"][0]) * 1000
+            mag_label, mag_op = f"Displacement X [{lu}]", float(op["X"][0]) * lf
         phase_series = [Series(x=xs, y=_r(np.degrees(resp["phi"])), emphasis=True,
                                label="absolute motion" if kind == "support" else "")]
         if kind == "support":
@@ -429,10 +432,10 @@ class ForcedResponse(CalcType):
             Panel(series=mag_series, y_label=mag_label, y_scale="log", bands=(band_s,),
                   markers=(fn_mark, Marker(x=opx, y=mag_op, label="operating point")),
                   y_range=_log_range(mag_series[0].y, zeta)),
-            Panel(series=(Series(x=xs, y=_r(resp["F_T"]), label="", emphasis=True),),
-                  y_label="Transmitted force F_T [N]", y_scale="log", bands=(band_s,),
-                  markers=(fn_mark, Marker(x=opx, y=float(op["F_T"][0]))),
-                  y_range=_log_range(_r(resp["F_T"]), zeta)),
+            Panel(series=(Series(x=xs, y=_r(resp["F_T"] * ff), label="", emphasis=True),),
+                  y_label=f"Transmitted force F_T [{fu}]", y_scale="log", bands=(band_s,),
+                  markers=(fn_mark, Marker(x=opx, y=float(op["F_T"][0]) * ff)),
+                  y_range=_log_range(_r(resp["F_T"] * ff), zeta)),
             Panel(series=tuple(phase_series), y_label="Phase lag φ [°]",
                   bands=(band_s,), markers=(fn_mark, Marker(
                       x=opx, y=float(np.degrees(op["phi"][0])))),
@@ -457,7 +460,8 @@ class ForcedResponse(CalcType):
     @staticmethod
     def _run_up_figure(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float,
                        k: float, zeta: float, fn: float, f: float,
-                       band: tuple[float, float], crit: Mapping[str, Any]) -> Figure:
+                       band: tuple[float, float], crit: Mapping[str, Any],
+                       units: str) -> Figure:
         low, high = p["speed_range"]
         freqs = _grid(low, high, fn, zeta)
         resp = response(kind, p, given, m, k, zeta, freqs)
@@ -479,10 +483,12 @@ class ForcedResponse(CalcType):
                          markers=markers, bands=bands, hlines=hl,
                          y_range=_linear_range(y, zeta, hl))
 
-        panels = (panel(resp["X"], "Displacement X [mm]", "max_displacement", 1000.0),
-                  panel(resp["V"], "Velocity, peak [mm/s]", "max_velocity", 1000.0),
-                  panel(resp["F_T"], "Transmitted force F_T [N]", "max_transmitted_force",
-                        1.0))
+        (lf, lu), (vf, vu), (ff, fu) = (_axis(d, units) for d in ("length", "velocity",
+                                                                  "force"))
+        panels = (panel(resp["X"], f"Displacement X [{lu}]", "max_displacement", lf),
+                  panel(resp["V"], f"Velocity, peak [{vu}]", "max_velocity", vf),
+                  panel(resp["F_T"], f"Transmitted force F_T [{fu}]", "max_transmitted_force",
+                        ff))
         held = {"force": "force amplitude held constant over the range",
                 "unbalance": "unbalance force m_e·e·ω² growing with speed",
                 "support": "support " + ("displacement" if "base_displacement" in given
@@ -690,6 +696,16 @@ def _linear_range(y: tuple[float, ...], zeta: float,
     return 0.0, top
 
 
+def _axis(dimension: str, units: str) -> tuple[float, str]:
+    """Factor from SI and unit label for a plotted quantity (mm, mm/s, N or in, in/s, lbf)."""
+    return table_display(1.0, dimension, units)
+
+
+def _show(value: float, dimension: str, units: str) -> str:
+    factor, label = _axis(dimension, units)
+    return f"{format_number(value * factor)} {label}"
+
+
 def _freqresp(system: Any, w: float) -> complex:
     from scipy import signal
 
@@ -787,10 +803,10 @@ def _method_text(kind: str) -> str:
 
 
 def _regime_text(kind: str, r: float, zeta: float, phi: float, k: float, cw: float,
-                 mw2: float) -> str:
+                 mw2: float, units: str) -> str:
     terms = (f"At the operating point the three terms of the dynamic stiffness are k ="
-             f" {format_number(k)} N/m, c·ω = {format_number(cw)} N/m and m·ω² ="
-             f" {format_number(mw2)} N/m.")
+             f" {_show(k, 'stiffness', units)}, c·ω = {_show(cw, 'stiffness', units)} and"
+             f" m·ω² = {_show(mw2, 'stiffness', units)}.")
     deg = format_number(math.degrees(phi))
     if r < STIFFNESS_CONTROLLED_BELOW:
         text = (f"Below resonance (r = {r:.3g} < {STIFFNESS_CONTROLLED_BELOW:g}):"

@@ -553,3 +553,19 @@ def test_contract_and_real_pdf(tmp_path):
     text = built.text()
     assert "Caution" in text and "seismic restraint" in text.lower()
     assert "rated" in text
+
+
+def test_us_customary_package_plots_in_inches_and_pounds_force():
+    # 1 in = 25.4 mm exactly, 1 lbf = 4.4482216152605 N (international definitions).
+    calc = _calc({"mass": "100 kg", "stiffness": "400 kN/m", "damping_ratio": 0.05,
+                  "force_amplitude": "500 N", "frequency": "8 Hz"})
+    si = compute(make_job([calc]))
+    us = compute(make_job([calc], units="US"))
+    fig_si, fig_us = (next(b for b in _blocks(d, Figure)) for d in (si, us))
+    assert fig_us.panels[0].y_label == "Displacement X [in]"
+    assert fig_us.panels[1].y_label.endswith("[lbf]")
+    assert fig_us.panels[0].series[0].y[50] == pytest.approx(
+        fig_si.panels[0].series[0].y[50] / 25.4, rel=1e-9)
+    assert fig_us.panels[1].series[0].y[50] == pytest.approx(
+        fig_si.panels[1].series[0].y[50] / 4.4482216152605, rel=1e-9)
+    assert _results(us) == _results(si)  # results stay SI whatever the display
