@@ -53,7 +53,7 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
     if executor == "dask":
         from .distributed import run_on_dask
 
-        return run_on_dask(func, items, scheduler=scheduler, on_done=on_done)
+        return run_on_dask(func, items, scheduler=scheduler, on_done=on_done, workers=workers)
     if workers <= 1 or len(items) <= 1:
         for i, item in enumerate(items):
             outcomes[i] = func(*item)

@@ -111,7 +111,7 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
             raise JobError(Problem(str(path), f"{existing[0]} already exists; a package of the"
                                    " same calc number and revision is replaced only with"
                                    " --force"))
-    doc = compute_document(job, plugins)
+    doc = compute_document(job, plugins, verify=verification_cache(opts))
     if job.previous_package is not None:
         from .archive import changes_since
 
@@ -143,6 +143,13 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
                        title=job.info.title, calc_number=job.info.calc_number,
                        revision=job.info.revision, html=html_path,
                        extra={"date": job.info.date})
+
+
+def verification_cache(opts: BuildOptions):
+    """Reuse independent-check rows from the cache folder unless --no-cache."""
+    from .cache import VerificationCache, default_cache_dir
+
+    return VerificationCache((opts.cache_dir or default_cache_dir()) if opts.use_cache else None)
 
 
 def check_out_dir(out_dir: Path, job_path: Path) -> None:

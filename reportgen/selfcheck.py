@@ -186,7 +186,8 @@ def _font_problems(p) -> list[str]:
             desc = font.get("/FontDescriptor")
             if desc is None and "/DescendantFonts" in font:
                 desc = font["/DescendantFonts"][0].get("/FontDescriptor")
-            if desc is None or not any(k in desc for k in ("/FontFile", "/FontFile2", "/FontFile3")):
+            if desc is None or not any(k in desc for k in
+                                       ("/FontFile", "/FontFile2", "/FontFile3")):
                 out.append(f"font {font.get('/BaseFont', '?')} is not embedded")
         for _, xo in resources.get("/XObject", {}).items():  # figures and equations
             if xo.get("/Subtype") == "/Form" and xo.objgen not in seen:

@@ -16,6 +16,7 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
+from ..cache import default_cache_dir
 from ..model import Document, Equation, Figure, to_json
 from .html import data_uri
 
@@ -23,14 +24,6 @@ from .html import data_uri
 RENDERER_TAG = "assets/4"
 #: Below this many assets a pool's start-up (~50 ms a worker) costs more than it saves.
 MIN_PARALLEL = 6
-
-
-def default_cache_dir() -> Path:
-    env = os.environ.get("REPORTGEN_CACHE_DIR")
-    if env:
-        return Path(env)
-    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
-    return Path(base) / "reportgen"
 
 
 @lru_cache(maxsize=1)

@@ -181,10 +181,10 @@ def font_key(chars: str) -> str:
 
 def subset_font(chars: str) -> bytes:
     """The math font cut down to ``chars`` (deterministic: no timestamp is recalculated)."""
+    from importlib import resources
+
     from fontTools import subset
     from fontTools.ttLib import TTFont
-
-    from importlib import resources
 
     path = str(resources.files("ziamath") / "fonts" / "STIXTwoMath-Regular.ttf")
     font = TTFont(path, lazy=True, recalcTimestamp=False)
@@ -204,5 +204,5 @@ def subset_font(chars: str) -> bytes:
 def font_face_css(font: bytes) -> str:
     import base64
 
-    return ("@font-face { font-family: '%s'; src: url(data:font/ttf;base64,%s); }"
-            % (MATH_FAMILY, base64.b64encode(font).decode("ascii")))
+    data = base64.b64encode(font).decode("ascii")
+    return f"@font-face {{ font-family: '{MATH_FAMILY}'; src: url(data:font/ttf;base64,{data}); }}"

@@ -1,0 +1,134 @@
+"""The verification cache: a calc's independent-check rows, keyed by a hash of everything
+they depend on, so a warm rebuild skips the second method (ODE integration and the like).
+
+Entries live beside the asset cache (``REPORTGEN_CACHE_DIR``, ``--no-cache`` bypasses).
+An entry carries the SHA-256 of its body and is ignored unless it matches; rows that do
+not rebuild into VerificationRows are ignored too. A plugin bumps its version when its
+verify method changes; the key includes that version, the inputs and the computed results.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import math
+import os
+from pathlib import Path
+from typing import Any
+
+from .calc import CalcContext, CalcOutput
+from .model import VerificationRow, to_json
+from .plugins import RegisteredCalc
+
+
+def default_cache_dir() -> Path:
+    """``REPORTGEN_CACHE_DIR``, else ``$XDG_CACHE_HOME/reportgen`` or ``~/.cache/reportgen``."""
+    env = os.environ.get("REPORTGEN_CACHE_DIR")
+    if env:
+        return Path(env)
+    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    return Path(base) / "reportgen"
+
+
+#: Bump when the key or the entry format changes.
+CACHE_TAG = "verify/1"
+
+
+def _plain(value: Any) -> Any:
+    """JSON-able form that keeps floats exact (repr round-trips) and sets ordered."""
+    if isinstance(value, float):
+        return repr(value) if not math.isfinite(value) else value
+    if isinstance(value, (frozenset, set)):
+        return sorted(_plain(v) for v in value)
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in sorted(value.items())}
+    if isinstance(value, (tuple, list)):
+        return [_plain(v) for v in value]
+    if hasattr(value, "tolist"):  # numpy arrays and scalars
+        return _plain(value.tolist())
+    return value
+
+
+def verification_key(reg: RegisteredCalc, ctx: CalcContext, output: CalcOutput) -> str:
+    ct = reg.calc_type
+    payload = {
+        "tag": CACHE_TAG,
+        "calc_type": [reg.name, ct.version, getattr(ct, "api_version", 1)],
+        "package": [reg.package, reg.package_version],
+        "inputs": _plain(dict(ctx.inputs)), "given": _plain(ctx.given),
+        "criteria": _plain(dict(ctx.criteria)), "criteria_given": _plain(ctx.criteria_given),
+        "units": ctx.units, "options": _plain(dict(ctx.options)),
+        "results": _plain(to_json(tuple(output.results))),
+    }
+    text = json.dumps(payload, sort_keys=True, separators=(",", ":"), default=repr)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+class VerificationCache:
+    """``verify=`` for :func:`reportgen.build.compute_document`: reuse rows or compute them."""
+
+    def __init__(self, folder: Path | None):
+        self.folder = folder / "verify" if folder is not None else None
+        self.hits = 0
+        self.misses = 0
+
+    def __call__(self, reg: RegisteredCalc, ctx: CalcContext,
+                 output: CalcOutput) -> list[VerificationRow] | None:
+        if self.folder is None:
+            return reg.calc_type.verify(ctx, output)
+        try:
+            key = verification_key(reg, ctx, output)
+        except (TypeError, ValueError):
+            return reg.calc_type.verify(ctx, output)  # inputs we cannot hash: no caching
+        found = self.get(key)
+        if found is not _MISSING:
+            self.hits += 1
+            return found
+        self.misses += 1
+        rows = reg.calc_type.verify(ctx, output)
+        if rows is None or all(isinstance(r, VerificationRow) for r in rows):
+            self.put(key, None if rows is None else list(rows))
+        return rows
+
+    def _path(self, key: str) -> Path:
+        assert self.folder is not None
+        return self.folder / key[:2] / f"{key}.json"
+
+    def get(self, key: str) -> Any:
+        try:
+            raw = self._path(key).read_bytes()
+        except OSError:
+            return _MISSING
+        head, sep, body = raw.partition(b"\n")
+        if not sep or head != hashlib.sha256(body).hexdigest().encode("ascii"):
+            return _MISSING  # corrupt or truncated: recompute and rewrite
+        try:
+            data = json.loads(body)
+            if data["key"] != key:
+                return _MISSING
+            if data["rows"] is None:
+                return None
+            rows = [VerificationRow(**r) for r in data["rows"]]
+        except (ValueError, KeyError, TypeError):
+            return _MISSING
+        if not all(isinstance(r.closed_form, float) and isinstance(r.independent, float)
+                   for r in rows):
+            return _MISSING
+        return rows
+
+    def put(self, key: str, rows: list[VerificationRow] | None) -> None:
+        data = {"key": key, "rows": None if rows is None else [
+            {f: getattr(r, f) for f in ("quantity", "closed_form", "independent", "tolerance",
+                                        "method", "abs_tolerance", "unit")} for r in rows]}
+        try:
+            body = json.dumps(data, sort_keys=True).encode("utf-8")
+            path = self._path(key)
+            path.parent.mkdir(parents=True, exist_ok=True)
+            tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
+            tmp.write_bytes(hashlib.sha256(body).hexdigest().encode("ascii") + b"\n" + body)
+            os.replace(tmp, path)
+        except (OSError, TypeError, ValueError):
+            pass  # a read-only or full cache folder only costs speed
+
+
+_MISSING = object()
