@@ -465,7 +465,8 @@ class Isolation(CalcType):
                     status="info", note="state the isolator's damping")
 
         s.add(self._transmissibility_figure(r, t, zeta, t_req, r_req))
-        s.add(self._selection_figure(f, zeta, dst, eta, d_req, crit["min_efficiency"]))
+        s.add(self._selection_figure(f, zeta, dst, eta, d_req, crit["min_efficiency"],
+                                    ctx.units))
         s.add(Paragraph(title="Typical damping of isolators", text=(
             "Steel springs ζ ≈ 0.005–0.01; elastomeric mounts and pads ζ ≈ 0.02–0.10 (common"
             " practice, no source). Damping raises the transmissibility above r = √2 and"
@@ -666,33 +667,35 @@ class Isolation(CalcType):
 
     @staticmethod
     def _selection_figure(f: float, zeta: float, d_op: float, eta_op: float, d_req: float,
-                          eta_min: float) -> Figure:
+                          eta_min: float, units: str) -> Figure:
         g = STANDARD_GRAVITY
+        scale, unit = table_display(1.0, "length", units)  # mm, or in for US customary
         d_sqrt2 = 2.0 * g / (2 * math.pi * f) ** 2  # deflection at r = √2
         d_lo = max(0.8 * d_sqrt2, 1e-5)
         d_hi = max(0.1, 2.5 * d_op, 2.5 * d_req)
         d = np.geomspace(d_lo, d_hi, 160)
         r = f / (np.sqrt(g / d) / (2 * math.pi))
         eff = 100.0 * (1.0 - transmissibility(r, zeta))
-        series = [Series(x=_r(d * 1000), y=_r(eff), label=f"ζ = {format_number(zeta, 3)}"
+        series = [Series(x=_r(d * scale), y=_r(eff), label=f"ζ = {format_number(zeta, 3)}"
                          " (stated)", emphasis=True)]
         if zeta != 0:
-            series.append(Series(x=_r(d * 1000), y=_r(100.0 * (1.0 - transmissibility(r, 0.0))),
+            series.append(Series(x=_r(d * scale), y=_r(100.0 * (1.0 - transmissibility(r, 0.0))),
                                  label="ζ = 0", style="dashed"))
         y_lo = 50.0 if eta_op >= 0.6 else 0.0
-        markers = [Marker(x=d_op * 1000, y=max(eta_op * 100, y_lo), label="selected"),
-                   Marker(x=d_req * 1000, y=eta_min * 100, label="required")]
+        markers = [Marker(x=d_op * scale, y=max(eta_op * 100, y_lo), label="selected"),
+                   Marker(x=d_req * scale, y=eta_min * 100, label="required")]
         return Figure(
             key="selection-chart",
             caption=f"Isolation efficiency against static deflection at"
                     f" {format_number(f * 60, 4)} rpm ({format_number(f, 4)} Hz): selected"
-                    f" {format_number(d_op * 1000, 3)} mm, η = {format_number(eta_op * 100, 3)} %;"
-                    f" required at least {format_number(d_req * 1000, 3)} mm for"
+                    f" {format_number(d_op * scale, 3)} {unit},"
+                    f" η = {format_number(eta_op * 100, 3)} %;"
+                    f" required at least {format_number(d_req * scale, 3)} {unit} for"
                     f" {format_number(eta_min * 100, 3)} %",
-            alt="Isolation efficiency in percent against static deflection in millimetres,"
+            alt="Isolation efficiency in percent against static deflection,"
                 " rising with deflection; the target line and the selected point are marked",
-            x_label="Static deflection δ_st [mm]", x_scale="log",
-            x_range=(d_lo * 1000, d_hi * 1000),
+            x_label=f"Static deflection δ_st [{unit}]", x_scale="log",
+            x_range=(d_lo * scale, d_hi * scale),
             panels=(Panel(series=tuple(series), y_label="Isolation efficiency η [%]",
                           y_range=(y_lo, 100.0),
                           hlines=((eta_min * 100, f"target {format_number(eta_min * 100, 3)} %"),),

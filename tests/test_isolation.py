@@ -533,3 +533,15 @@ def test_sample_jobs_build(tmp_path, capsys, name, code):
     else:
         assert status["efficiency"] == "fail" and "FAIL" in text
         assert data["package"]["status"] == "fail"
+
+
+def test_us_customary_labels_in_the_table_and_chart():
+    # display units only: 1 in = 25.4 mm exactly (NIST SP 811); the results stay SI
+    doc = compute(make_job([_calc(CHILLER)], units="US"))
+    table = _blocks(doc, Table)[0]
+    assert table.header[1] == "x [in]" and table.header[3] == "Load [lbf]"
+    assert math.isclose(float(table.rows[2][1]), 3600 / 25.4, rel_tol=5e-4)
+    chart = next(f for f in _blocks(doc, Figure) if f.key == "selection-chart")
+    assert chart.x_label.endswith("[in]")
+    selected = next(m for m in chart.panels[0].markers if m.label == "selected")
+    assert math.isclose(selected.x, result(doc, "static_deflection") / 0.0254, rel_tol=1e-12)
