@@ -183,6 +183,8 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
                 values is not None and _leaf_value(node.left, values))
             if numeric_right or (numeric_left and values is not None):
                 return f"{left} \\times {right}"
+            if _is_fraction(node.left) or _is_fraction(node.right):
+                return f"{left} \\cdot {right}"  # "U/m r²" would read ambiguously
             return f"{left}\\,{right}"
         assert isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
         fname = node.func.id
@@ -196,6 +198,10 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
         return _FUNC_LATEX[fname] + paren(", ".join(args))
 
     return tex(tree)
+
+
+def _is_fraction(node: ast.expr) -> bool:
+    return isinstance(node, ast.BinOp) and isinstance(node.op, ast.Div)
 
 
 def _leaf_value(node: ast.expr, values: Mapping[str, float]) -> bool:

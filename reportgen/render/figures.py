@@ -64,7 +64,7 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
             ax.set_ylabel(panel.y_label)
             if panel.y_range:
                 ax.set_ylim(*panel.y_range)
-            if any(s.label for s in panel.series) or panel.bands or panel.hlines:
+            if ax.get_legend_handles_labels()[0]:  # only labelled artists get a legend
                 ax.legend(loc="best")
         last = axes[-1, 0]
         last.set_xscale(fig.x_scale)
