@@ -177,11 +177,7 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
                 return f"{left} + {right}"
             if isinstance(op, ast.Sub):
                 return f"{left} - {right}"
-            numeric_right = isinstance(node.right, ast.Constant) or (
-                values is not None and _leaf_value(node.right, values))
-            numeric_left = isinstance(node.left, ast.Constant) or (
-                values is not None and _leaf_value(node.left, values))
-            if numeric_right or (numeric_left and values is not None):
+            if values is not None or isinstance(node.right, ast.Constant):
                 return f"{left} \\times {right}"
             if _is_fraction(node.left) or _is_fraction(node.right):
                 return f"{left} \\cdot {right}"  # "U/m r²" would read ambiguously
@@ -202,10 +198,6 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
 
 def _is_fraction(node: ast.expr) -> bool:
     return isinstance(node, ast.BinOp) and isinstance(node.op, ast.Div)
-
-
-def _leaf_value(node: ast.expr, values: Mapping[str, float]) -> bool:
-    return isinstance(node, ast.Name) and node.id in values
 
 
 def _num(value: float, digits: int) -> str:
