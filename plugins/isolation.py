@@ -205,7 +205,7 @@ class Isolation(CalcType):
     criteria = (
         InputSpec(name="min_efficiency", symbol="eta_min", description="Required isolation"
                   " efficiency 1 − T at the running speed", default=0.90, minimum=0.01,
-                  maximum=0.999, default_note="usual target for plant on upper floors"),
+                  maximum=0.999, default_note="common practice, no source"),
         InputSpec(name="max_static_deflection", symbol="delta_max", description="Largest"
                   " acceptable static deflection of any mount", dimension="length",
                   required=False, positive=True),
