@@ -126,7 +126,7 @@ def build_command(args) -> int:
     from .pipeline import build_job
 
     plugins = load_plugins()
-    opts = BuildOptions(**{**opts.__dict__, "workers": jobs})
+    opts = BuildOptions(**{**opts.__dict__, "workers": jobs, "split": True})
     result = build_job(target, plugins, opts)
     print(summary_line(result))
     return int(result.exit_code)

@@ -36,6 +36,7 @@ class BuildOptions:
     workers: int = 1
     template_dir: Path | None = None  # overrides the job's [package] template_dir
     self_check: bool = True
+    split: bool = False  # compute in a forked child, lay out here (reportgen.split)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -80,28 +81,43 @@ def refuse_final(doc: Document, job: Job) -> None:
 def render_package(doc: Document, job: Job, opts: BuildOptions, results: bytes,
                    plugins: PluginSet | None = None) -> tuple[bytes, str]:
     """Return (pdf bytes, html) for a computed document."""
+    html, files, roots = package_html(doc, job, opts, results, plugins, preload=True)
+    return package_pdf(html, job, files, roots), html
+
+
+def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
+                 plugins: PluginSet | None = None, *, preload: bool = False):
+    """Draw the assets and write the final HTML: (html, embedded files, template roots)."""
     from .archive import manifest_bytes
     from .render.assets import start_assets
     from .render.html import render_html
-    from .render.pdf import preload_renderer, write_pdf
     from .templates import firm_logo, jinja_hook
 
     template_dir = opts.template_dir or job.template_dir
     pending = start_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
                            workers=opts.workers)
-    if pending.parallel:
+    if preload and pending.parallel:
+        from .render.pdf import preload_renderer
+
         preload_renderer()  # import WeasyPrint while the workers draw
     assets = pending.result()
     html = render_html(doc, assets, template_dir=template_dir,
                        logo=firm_logo(template_dir), extra_hook=jinja_hook(doc, plugins))
     files = embedded_files(job, results, manifest_bytes(doc, job, results))
     roots = (template_dir,) if template_dir else ()
-    pdf = write_pdf(html, base_dir=job.folder, attachments=files, date=job.info.date,
-                    extra_roots=roots)
-    return pdf, html
+    return html, files, roots
 
 
-def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
+def package_pdf(html: str, job: Job, files, roots) -> bytes:
+    from .render.pdf import write_pdf
+
+    return write_pdf(html, base_dir=job.folder, attachments=files, date=job.info.date,
+                     extra_roots=roots)
+
+
+def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
+                    preload: bool = False):
+    """Everything before the layout: (job, doc, results.json, html, files, roots)."""
     job = load_job(path, plugins)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
@@ -119,7 +135,24 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
     if opts.final:
         refuse_final(doc, job)
     results = results_bytes(doc)
-    pdf, html = render_package(doc, job, opts, results, plugins)
+    html, files, roots = package_html(doc, job, opts, results, plugins, preload=preload)
+    return job, doc, results, html, files, roots
+
+
+def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
+    from .split import can_split, run_split
+
+    if opts.split and can_split():
+        # compute and draw in a forked child while WeasyPrint imports here (reportgen.split)
+        from .render.pdf import preload_renderer
+
+        job, doc, results, html, files, roots = run_split(
+            lambda: prepare_package(path, plugins, opts), preload_renderer)
+    else:
+        job, doc, results, html, files, roots = prepare_package(path, plugins, opts,
+                                                                preload=True)
+    pdf_path, results_path = output_paths(job, opts.out_dir)
+    pdf = package_pdf(html, job, files, roots)
     if opts.self_check:
         from .selfcheck import self_check
 

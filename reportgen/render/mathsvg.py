@@ -67,6 +67,7 @@ def install_speedups() -> bool:
             return (0.0, 0.0)
         return original(self, line, **kwargs)
 
+    _get_height_nostretch.original = original  # type: ignore[attr-defined]  # for tests
     Mrow._get_height_nostretch = _get_height_nostretch
     return True
 
