@@ -132,3 +132,56 @@ class VerificationCache:
 
 
 _MISSING = object()
+
+
+def _verify_remote(reg: RegisteredCalc, ctx: CalcContext, output: CalcOutput):
+    rows = reg.calc_type.verify(ctx, output)
+    return None if rows is None else list(rows)
+
+
+class EarlyVerification:
+    """Start every uncached verification in worker processes before the document is
+    assembled; :func:`reportgen.build.compute_document` then collects the rows in order.
+
+    Each calc is computed once more here (milliseconds) to hand its output to the
+    worker; compute is deterministic, so the rows are those the serial path would make.
+    """
+
+    def __init__(self, cache: VerificationCache, pool):
+        self.cache = cache
+        self.pool = pool
+        self.futures: dict[str, tuple[str, Any]] = {}
+        self.outputs: list[CalcOutput] = []
+
+    def start(self, job, plugins) -> None:
+        from .build import calc_context
+
+        for spec in job.calcs:
+            reg = plugins.calcs[spec.plugin]
+            ctx = calc_context(spec, job.info.units)
+            try:
+                out = reg.calc_type.compute(ctx)
+            except Exception:
+                continue  # compute_document raises it properly, naming the plugin
+            self.outputs.append(out)
+            if self.cache.folder is None:
+                key = ""
+            else:
+                try:
+                    key = verification_key(reg, ctx, out)
+                except (TypeError, ValueError):
+                    continue
+                if self.cache.get(key) is not _MISSING:
+                    continue
+            self.futures[spec.id] = (key, self.pool.submit(_verify_remote, reg, ctx, out))
+
+    def __call__(self, reg: RegisteredCalc, ctx: CalcContext, output: CalcOutput):
+        started = self.futures.pop(ctx.calc_id, None)
+        if started is None:
+            return self.cache(reg, ctx, output)
+        key, fut = started
+        rows = fut.result()  # the worker's exception, if any, is re-raised here
+        self.cache.misses += 1
+        if key and (rows is None or all(isinstance(r, VerificationRow) for r in rows)):
+            self.cache.put(key, rows)
+        return rows

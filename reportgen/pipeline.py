@@ -86,7 +86,8 @@ def render_package(doc: Document, job: Job, opts: BuildOptions, results: bytes,
 
 
 def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
-                 plugins: PluginSet | None = None, *, preload: bool = False):
+                 plugins: PluginSet | None = None, *, preload: bool = False, pool=None,
+                 prefetched=None):
     """Draw the assets and write the final HTML: (html, embedded files, template roots)."""
     from .archive import manifest_bytes
     from .render.assets import start_assets
@@ -95,7 +96,7 @@ def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
 
     template_dir = opts.template_dir or job.template_dir
     pending = start_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
-                           workers=opts.workers)
+                           workers=opts.workers, pool=pool, prefetched=prefetched)
     if preload and pending.parallel:
         from .render.pdf import preload_renderer
 
@@ -118,6 +119,19 @@ def package_pdf(html: str, job: Job, files, roots) -> bytes:
 def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
                     preload: bool = False):
     """Everything before the layout: (job, doc, results.json, html, files, roots)."""
+    pool = None
+    if opts.split and opts.workers > 1:
+        from .render.assets import warm_pool
+
+        pool = warm_pool(opts.workers)  # drawing workers load matplotlib meanwhile
+    try:
+        return _prepare(path, plugins, opts, preload, pool)
+    finally:
+        if pool is not None:
+            pool.shutdown(wait=False, cancel_futures=True)
+
+
+def _prepare(path: Path, plugins: PluginSet, opts: BuildOptions, preload: bool, pool):
     job = load_job(path, plugins)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
@@ -127,7 +141,20 @@ def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
             raise JobError(Problem(str(path), f"{existing[0]} already exists; a package of the"
                                    " same calc number and revision is replaced only with"
                                    " --force"))
-    doc = compute_document(job, plugins, verify=verification_cache(opts))
+    verify = verification_cache(opts)
+    prefetched = None
+    if pool is not None:
+        # Verification and drawing start in the workers now, side by side, instead of
+        # one after the other (reportgen.cache.EarlyVerification, render.assets.prefetch).
+        from .cache import EarlyVerification
+        from .render.assets import prefetch
+
+        verify = EarlyVerification(verify, pool)
+        verify.start(job, plugins)
+        prefetched = prefetch((b for out in verify.outputs for b in out.blocks),
+                              job.info.units, cache_dir=opts.cache_dir,
+                              use_cache=opts.use_cache, pool=pool)
+    doc = compute_document(job, plugins, verify=verify)
     if job.previous_package is not None:
         from .archive import changes_since
 
@@ -135,7 +162,8 @@ def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
     if opts.final:
         refuse_final(doc, job)
     results = results_bytes(doc)
-    html, files, roots = package_html(doc, job, opts, results, plugins, preload=preload)
+    html, files, roots = package_html(doc, job, opts, results, plugins, preload=preload,
+                                      pool=pool, prefetched=prefetched)
     return job, doc, results, html, files, roots
 
 

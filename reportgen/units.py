@@ -70,10 +70,29 @@ class UnitProblem(ValueError):
 
 @lru_cache(maxsize=1)
 def _registry():  # pint is imported lazily: start-up stays fast
-    import pint
+    import sys
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-    return ureg
+    # pint probes optional array libraries when imported; dask (installed for the
+    # distributed engine) alone costs ~0.25 s. Job files hold plain numbers, so dask
+    # is hidden while pint loads and importable again afterwards.
+    hidden = "dask" not in sys.modules
+    if hidden:
+        sys.modules["dask"] = None  # type: ignore[assignment]
+    try:
+        import pint
+    finally:
+        if hidden:
+            sys.modules.pop("dask", None)
+    # pint's own parse of its definitions file (~0.2 s) is cached beside reportgen's
+    # caches; flexcache keys it by the file's content. Any problem: parse afresh.
+    try:
+        from .cache import default_cache_dir
+
+        folder = default_cache_dir() / "pint"
+        folder.mkdir(parents=True, exist_ok=True)
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder)
+    except Exception:
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
 
 
 _SPEED_UNITS = re.compile(r"\b(rpm|rps|rev|revolution|revolutions|cpm)\b")

@@ -159,3 +159,30 @@ def main_build(out: Path) -> int:
 
     return main(["build", str(REPO / "sample_jobs" / "qep-104-chiller-ch1.toml"), "--out",
                  str(out), "--force"])
+
+
+def test_outlines_skipped_for_text_glyphs_change_nothing(latex_corpus):
+    import ziamath
+
+    from reportgen.render.mathsvg import _math_font, glyphs_to_text, latex_svg
+
+    for tex in latex_corpus[:40]:
+        fast = latex_svg(tex)  # outlines of text glyphs never formatted
+        ziamath.config.svg2 = True
+        full = glyphs_to_text(ziamath.Latex(tex, size=12.5).svg(), _math_font().cmap)
+        assert fast == full, tex
+
+
+def test_self_check_reads_the_same_text_in_two_processes(tmp_path, monkeypatch):
+    import io
+
+    import pikepdf
+
+    from reportgen import selfcheck
+
+    assert main_build(tmp_path) in (0, 1)
+    pdf = next(tmp_path.glob("*.pdf")).read_bytes()
+    monkeypatch.setattr(selfcheck, "SPLIT_PAGES", 2)
+    with pikepdf.open(io.BytesIO(pdf)) as p:
+        assert len(p.pages) >= 4
+        assert selfcheck._pages_text_split(p, pdf) == selfcheck._pages_text(p)

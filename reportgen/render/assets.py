@@ -61,6 +61,37 @@ def _render_many(jobs: list[tuple[str, Any, str]]) -> list[bytes]:
     return [_render_one(j) for j in jobs]
 
 
+def _warm_up() -> None:
+    # Runs as each worker starts: the drawing libraries load (~0.7 s) while the parent
+    # is still computing, so the first figure is drawn as soon as it is asked for.
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot  # noqa: F401
+
+    from .mathsvg import _math_font, install_speedups
+
+    install_speedups()
+    _math_font()
+
+
+def _noop() -> None:
+    return None
+
+
+def warm_pool(workers: int) -> ProcessPoolExecutor | None:
+    """Start ``workers`` drawing processes now (fork), before the document exists."""
+    if workers <= 1 or not hasattr(os, "fork"):
+        return None
+    import multiprocessing
+
+    pool = ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context(
+        "fork"), initializer=_warm_up)
+    for _ in range(workers):
+        pool.submit(_noop)  # workers start on the first submissions
+    return pool
+
+
 class AssetCache:
     """Content-addressed files ``KEY[:2]/KEY.svg``: a SHA-256 line, then the payload."""
 
@@ -115,7 +146,9 @@ class PendingAssets:
     process imports WeasyPrint (about 0.6 s of work that would otherwise come first).
     """
 
-    def __init__(self, doc: Document, cache: AssetCache, workers: int):
+    def __init__(self, doc: Document, cache: AssetCache, workers: int,
+                 pool: ProcessPoolExecutor | None = None,
+                 prefetched: dict[str, Future] | None = None):
         self.units = doc.info.units
         self.cache = cache
         self.payloads: dict[str, bytes] = {}
@@ -133,28 +166,36 @@ class PendingAssets:
                 self.payloads[key] = cached
             else:
                 todo[key] = (kind, block)
-        self.todo = todo
         self._pool: ProcessPoolExecutor | None = None
         self._futures: list[tuple[list[str], Future]] = []
+        for key, fut in (prefetched or {}).items():
+            if key in todo:  # already being drawn (started before the document existed)
+                del todo[key]
+                self._futures.append(([key], fut))
+        self.todo = todo
         jobs = [(key, (kind, block, self.units)) for key, (kind, block) in todo.items()]
-        if workers > 1 and len(jobs) >= MIN_PARALLEL:
+        self._serial: list = []
+        if pool is not None:
+            self._start(jobs, pool._max_workers, pool)
+        elif workers > 1 and len(jobs) >= MIN_PARALLEL:
             self._start(jobs, workers)
         else:
             self._serial = jobs
 
     @property
     def parallel(self) -> bool:
-        return self._pool is not None
+        return self._pool is not None or bool(self._futures)
 
-    def _start(self, jobs: list[tuple[str, Any]], workers: int) -> None:
+    def _start(self, jobs: list[tuple[str, Any]], workers: int,
+               pool: ProcessPoolExecutor | None = None) -> None:
         import multiprocessing
 
-        # Figures cost ~5x an equation: deal them out first, then equations in chunks,
+        # Figures cost ~10x an equation: deal them out first, then equations in chunks,
         # so the workers finish together. Fork: workers inherit the loaded modules.
         jobs = sorted(jobs, key=lambda j: j[1][0] != "figure")
         ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
-        n = min(workers, len(jobs))
-        self._pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx)
+        n = workers if pool is not None else min(workers, len(jobs))
+        self._pool = pool or ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         chunks: list[list[tuple[str, Any]]] = []
         figs = [j for j in jobs if j[1][0] == "figure"]
         eqs = [j for j in jobs if j[1][0] != "figure"]
@@ -164,13 +205,13 @@ class PendingAssets:
         for chunk in chunks:
             fut = self._pool.submit(_render_many, [j for _, j in chunk])
             self._futures.append(([k for k, _ in chunk], fut))
-        self._serial = []
 
     def result(self) -> Assets:
         fresh: dict[str, bytes] = {}
         try:
             for keys, fut in self._futures:
-                fresh.update(zip(keys, fut.result(), strict=True))
+                got = fut.result()
+                fresh.update(zip(keys, [got] if isinstance(got, bytes) else got, strict=True))
         finally:
             if self._pool is not None:
                 self._pool.shutdown(wait=True, cancel_futures=True)
@@ -202,9 +243,34 @@ class PendingAssets:
 
 
 def start_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,
-                 workers: int = 1) -> PendingAssets:
+                 workers: int = 1, pool: ProcessPoolExecutor | None = None,
+                 prefetched: dict[str, Future] | None = None) -> PendingAssets:
+    """Look assets up in the cache and start drawing the rest (in ``pool`` if given)."""
     cache = AssetCache((cache_dir or default_cache_dir()) if use_cache else None)
-    return PendingAssets(doc, cache, workers)
+    return PendingAssets(doc, cache, workers, pool, prefetched)
+
+
+def prefetch(blocks: Iterable[Any], units: str, *, cache_dir: Path | None, use_cache: bool,
+             pool: ProcessPoolExecutor) -> dict[str, Future]:
+    """Start drawing the uncached figures and equations among ``blocks`` in ``pool``."""
+    cache = AssetCache((cache_dir or default_cache_dir()) if use_cache else None)
+    figs: dict[str, Any] = {}
+    eqs: dict[str, Any] = {}
+    for block in blocks:
+        kind = "figure" if isinstance(block, Figure) else (
+            "equation" if isinstance(block, Equation) else None)
+        if kind is None:
+            continue
+        key = asset_key(block, units)
+        if key in figs or key in eqs or cache.get(key) is not None:
+            continue
+        (figs if kind == "figure" else eqs)[key] = (kind, block, units)
+    out: dict[str, Future] = {}
+    for key, job in figs.items():  # the slow ones first
+        out[key] = pool.submit(_render_one, job)
+    for key, job in eqs.items():
+        out[key] = pool.submit(_render_one, job)
+    return out
 
 
 def render_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,

@@ -69,7 +69,40 @@ def install_speedups() -> bool:
 
     _get_height_nostretch.original = original  # type: ignore[attr-defined]  # for tests
     Mrow._get_height_nostretch = _get_height_nostretch
+    _skip_text_outlines()
     return True
+
+
+_TEXT_MODE = {"on": False}
+
+
+def _skip_text_outlines() -> None:
+    """While :func:`latex_svg` runs, glyphs that will become text get no outline path.
+
+    Formatting the outline of every glyph is a fifth of ziamath's time here, and
+    :func:`glyphs_to_text` drops the outline of each glyph written as text.
+    """
+    from ziafont.glyph import SimpleGlyph
+
+    original = SimpleGlyph.svgsymbol
+
+    def svgsymbol(self):
+        if not _TEXT_MODE["on"] or _char_for(self.id, self.font.cmap) is None:
+            return original(self)
+        xmin, xmax, ymin, ymax = self.viewbox
+        sym = ET.Element("symbol")
+        sym.attrib["id"] = self.id
+        sym.attrib["viewBox"] = (f"{_zfmt(xmin)} {_zfmt(-ymax)} {_zfmt(xmax - xmin)}"
+                                 f" {_zfmt(ymax - ymin)}")
+        return sym
+
+    SimpleGlyph.svgsymbol = svgsymbol
+
+
+def _zfmt(v: float) -> str:
+    from ziafont.glyph import fmt
+
+    return fmt(v)
 
 
 def _num(text: str | None) -> float:
@@ -94,7 +127,11 @@ def latex_svg(latex: str, size: float = 12.5) -> bytes:
 
     install_speedups()
     ziamath.config.svg2 = True  # glyphs as <symbol>/<use>: positions are easy to read back
-    svg = ziamath.Latex(latex, size=size).svg()
+    _TEXT_MODE["on"] = True
+    try:
+        svg = ziamath.Latex(latex, size=size).svg()
+    finally:
+        _TEXT_MODE["on"] = False
     return glyphs_to_text(svg, _math_font().cmap)
 
 
