@@ -119,19 +119,6 @@ def package_pdf(html: str, job: Job, files, roots) -> bytes:
 def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
                     preload: bool = False):
     """Everything before the layout: (job, doc, results.json, html, files, roots)."""
-    pool = None
-    if opts.split and opts.workers > 1:
-        from .render.assets import warm_pool
-
-        pool = warm_pool(opts.workers)  # drawing workers load matplotlib meanwhile
-    try:
-        return _prepare(path, plugins, opts, preload, pool)
-    finally:
-        if pool is not None:
-            pool.shutdown(wait=False, cancel_futures=True)
-
-
-def _prepare(path: Path, plugins: PluginSet, opts: BuildOptions, preload: bool, pool):
     job = load_job(path, plugins)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
@@ -141,6 +128,19 @@ def _prepare(path: Path, plugins: PluginSet, opts: BuildOptions, preload: bool, 
             raise JobError(Problem(str(path), f"{existing[0]} already exists; a package of the"
                                    " same calc number and revision is replaced only with"
                                    " --force"))
+    pool = None
+    if opts.split and opts.workers > 1:
+        from .render.assets import warm_pool
+
+        pool = warm_pool(opts.workers)  # drawing workers load matplotlib meanwhile
+    try:
+        return _prepare(job, plugins, opts, preload, pool)
+    finally:
+        if pool is not None:  # wait: a worker left behind would outlive the build
+            pool.shutdown(wait=True, cancel_futures=True)
+
+
+def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, pool):
     verify = verification_cache(opts)
     prefetched = None
     if pool is not None:

@@ -54,7 +54,7 @@ def run_split(work: Callable[[], Any], meanwhile: Callable[[], None]) -> Any:
             except Exception:
                 data = pickle.dumps(("retry",))
             with os.fdopen(write_fd, "wb") as fh:
-                fh.write(data)
+                fh.write(len(data).to_bytes(8, "big") + data)
         except BaseException:
             code = 1
         finally:
@@ -62,10 +62,13 @@ def run_split(work: Callable[[], Any], meanwhile: Callable[[], None]) -> Any:
     os.close(write_fd)
     try:
         meanwhile()
-        with os.fdopen(read_fd, "rb") as fh:
-            data = fh.read()
+        data = _receive(read_fd, pid)
     finally:
-        _, status = os.waitpid(pid, 0)
+        os.close(read_fd)
+        try:
+            os.waitpid(pid, 0)
+        except ChildProcessError:
+            pass  # already reaped while reading
     try:
         message = pickle.loads(data) if data else ("retry",)
     except Exception:
@@ -75,3 +78,34 @@ def run_split(work: Callable[[], Any], meanwhile: Callable[[], None]) -> Any:
     if message[0] == "error":
         raise _decode_error(*message[1:])
     return work()  # same work here: its exception, if any, surfaces as usual
+
+
+def _receive(fd: int, pid: int) -> bytes:
+    """Read one length-prefixed message; stop when the child has gone, not at EOF.
+
+    Processes the child forked (its drawing workers) inherit the pipe, so EOF alone
+    could wait on a process that is not the child.
+    """
+    import select
+
+    buf = bytearray()
+    need: int | None = None
+    exited = False
+    while need is None or len(buf) < need + 8:
+        ready, _, _ = select.select([fd], [], [], 0.05)
+        if ready:
+            chunk = os.read(fd, 1 << 20)
+            if not chunk:
+                break
+            buf += chunk
+        elif exited:
+            break
+        else:
+            exited = os.waitpid(pid, os.WNOHANG)[0] != 0
+            if exited:
+                continue  # read whatever it wrote before leaving, then stop
+        if need is None and len(buf) >= 8:
+            need = int.from_bytes(buf[:8], "big")
+    if need is None or len(buf) < need + 8:
+        return b""
+    return bytes(buf[8:need + 8])
