@@ -287,7 +287,7 @@ def main(argv: list[str] | None = None) -> int:
         print("calc set, --jobs 1 and --jobs 2 ...", flush=True)
         r["set"] = bench_set(work, 4 if args.quick else 16, runs if args.quick else 1)
         print("peak memory of a large package ...", flush=True)
-        r["memory"] = bench_memory(work, 8 if args.quick else 31)
+        r["memory"] = bench_memory(work, 8 if args.quick else 34)
         r["load_after"] = _load()
     finally:
         if args.keep:
