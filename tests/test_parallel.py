@@ -6,6 +6,8 @@ draws.
 from __future__ import annotations
 
 import shutil
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -84,3 +86,22 @@ def test_parallel_asset_pool_draws_what_the_serial_path_draws(tmp_path):
     one = render_assets(doc, use_cache=False, workers=1)
     two = render_assets(doc, use_cache=False, workers=2)
     assert len(one) >= 6 and dict(one) == dict(two) and one.css == two.css
+
+
+def test_split_build_with_early_workers_matches_the_plain_in_process_build(tmp_path,
+                                                                           monkeypatch):
+    from reportgen.commands import load_plugins
+    from reportgen.pipeline import BuildOptions, build_job
+
+    job = REPO / "sample_jobs" / "qep-104-chiller-ch1.toml"
+    plain = build_job(job, load_plugins(), BuildOptions(out_dir=tmp_path / "plain",
+                                                        use_cache=False, workers=1))
+    monkeypatch.setenv("REPORTGEN_CACHE_DIR", str(tmp_path / "cache"))
+    # the command line's path in a fresh process: forked child, drawing pool started
+    # early, verification in it (in this process WeasyPrint is loaded: no split)
+    for out in ("split-cold", "split-warm"):
+        proc = subprocess.run([sys.executable, "-m", "reportgen.cli", "build", str(job),
+                               "--out", str(tmp_path / out), "--jobs", "2"],
+                              capture_output=True, text=True, timeout=300)
+        assert proc.returncode in (0, 1), proc.stderr
+        assert (tmp_path / out / plain.pdf.name).read_bytes() == plain.pdf.read_bytes()
