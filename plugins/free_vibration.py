@@ -266,12 +266,11 @@ class FreeVibration(CalcType):
         rows = []
         # Eigenvalues of the state matrix: |λ| = ω_n, −Re λ/|λ| = ζ.
         lam = np.linalg.eigvals(np.array([[0.0, 1.0], [-k / m, -c / m]]))
-        wn_eig = float(np.sqrt(np.prod(np.abs(lam)))) if zeta < 1 else float(
-            np.sqrt(lam[0].real * lam[1].real))
-        rows.append(VerificationRow(quantity="natural_frequency", closed_form=res["natural_frequency"],
-                                    independent=wn_eig / (2 * math.pi), tolerance=1e-9,
-                                    unit="frequency",
-                                    method="eigenvalues of the state matrix (numpy.linalg.eigvals)"))
+        wn_eig = float(np.sqrt(abs(np.prod(lam))))  # λ1·λ2 = ω_n² in every regime
+        rows.append(VerificationRow(
+            quantity="natural_frequency", closed_form=res["natural_frequency"],
+            independent=wn_eig / (2 * math.pi), tolerance=1e-9, unit="frequency",
+            method="eigenvalues of the state matrix (numpy.linalg.eigvals)"))
         x0, v0 = p["initial_displacement"], p["initial_velocity"]
         note = ""
         if x0 == 0 and v0 == 0:

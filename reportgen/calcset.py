@@ -80,8 +80,8 @@ class Progress:
         self.tty = sys.stdout.isatty()
         self._bar = None
         if self.tty:
-            from rich.progress import BarColumn, MofNCompleteColumn, Progress as RichProgress
-            from rich.progress import TextColumn
+            from rich.progress import BarColumn, MofNCompleteColumn, TextColumn
+            from rich.progress import Progress as RichProgress
 
             self._bar = RichProgress(TextColumn("{task.description}"), BarColumn(),
                                      MofNCompleteColumn(), TextColumn("{task.fields[info]}"))

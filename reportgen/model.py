@@ -9,7 +9,7 @@ from __future__ import annotations
 import dataclasses
 import math
 from dataclasses import dataclass, field
-from typing import Any, Literal, Union
+from typing import Any, Literal
 
 MODEL_VERSION = 1
 
@@ -174,10 +174,8 @@ class Reference:
     text: str
 
 
-Block = Union[
-    InputsTable, Assumptions, Equation, ResultsTable, Check, Figure, Paragraph, Note,
-    Caution, Table, Reference,
-]
+Block = (InputsTable | Assumptions | Equation | ResultsTable | Check | Figure | Paragraph
+         | Note | Caution | Table | Reference)
 BLOCK_TYPES: tuple[type, ...] = (
     InputsTable, Assumptions, Equation, ResultsTable, Check, Figure, Paragraph, Note,
     Caution, Table, Reference,
