@@ -326,10 +326,9 @@ def _forced_response_inputs() -> set[str]:
     ({"base_displacement": '"0.1 mm"'}, "inputs.base_displacement"),
 ])
 def test_forced_response_two_excitations(extra, field, tmp_path, capsys):
-    """Two excitations at once: only once the forced_response plugin exists."""
+    """Two excitations at once in the forced_response plugin."""
     needed = {"force_amplitude", "frequency", *extra}
-    if not needed <= _forced_response_inputs():
-        pytest.skip("forced_response is still a placeholder (or has other input names)")
+    assert needed <= _forced_response_inputs()
     text = job(plugin="forced_response", inputs={
         "damping_ratio": "0.05", "force_amplitude": '"500 N"', "frequency": '"8 Hz"', **extra})
     path = tmp_path / "fr.toml"
