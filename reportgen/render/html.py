@@ -52,7 +52,18 @@ def quantity_parts(q: Quantity | None, units: str, digits: int = 4) -> tuple[str
     if q is None:
         return ("", "")
     value, label = table_display(q.value, q.dimension, units)
-    return format_number(value, digits), label
+    return readable_number(format_number(value, digits)), label
+
+
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def readable_number(text: str) -> str:
+    """``3.16e-5`` -> ``3.16×10⁻⁵`` for tables (results.json keeps full floats)."""
+    if "e" not in text:
+        return text
+    mant, exp = text.split("e")
+    return f"{mant}×10{str(int(exp)).translate(_SUPERSCRIPT)}"
 
 
 def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
