@@ -335,16 +335,8 @@ def _fsync_dir(folder: Path) -> None:
 
 def atomic_write(target: Path, data: bytes) -> None:
     """Write ``data`` to a temporary file beside ``target``, fsync, then rename over it."""
-    target.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+    tmp = _write_temp(target, data)
     try:
-        umask = os.umask(0)
-        os.umask(umask)
-        os.fchmod(fd, 0o666 & ~umask)
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
         os.replace(tmp, target)
     except BaseException:
         try:
