@@ -545,3 +545,21 @@ def test_us_customary_labels_in_the_table_and_chart():
     assert chart.x_label.endswith("[in]")
     selected = next(m for m in chart.panels[0].markers if m.label == "selected")
     assert math.isclose(selected.x, result(doc, "static_deflection") / 0.0254, rel_tol=1e-12)
+
+
+def test_four_mount_chiller_at_1480_rpm_on_too_stiff_mounts_fails_efficiency():
+    # The acceptance case: 4-mount chiller at 1480 rpm, mounts too stiff.
+    # Hand check with Thomson & Dahleh §3.5: T = sqrt((1+(2ζr)²)/((1-r²)²+(2ζr)²)).
+    m, k = 3200.0, 4 * 2000e3
+    fn = math.sqrt(k / m) / (2 * math.pi)  # 7.958 Hz
+    r = (1480 / 60) / fn
+    zeta = 0.05  # the plugin's stated default
+    t = math.sqrt((1 + (2 * zeta * r) ** 2) / ((1 - r**2) ** 2 + (2 * zeta * r) ** 2))
+    doc = _doc({"mass": "3200 kg", "speed": "1480 rpm", "mounts": 4,
+                "stiffness_per_mount": "2000 kN/m"})
+    res = _results(doc)
+    assert res["natural_frequency"] == pytest.approx(fn, rel=1e-9)
+    assert res["isolation_efficiency"] == pytest.approx(1 - t, rel=1e-9)
+    assert 1 - t < 0.90
+    assert _checks(doc)["efficiency"] == "fail"
+    assert _checks(doc)["isolation-exists"] == "pass"  # r = 3.1 > √2, but not enough
