@@ -31,7 +31,8 @@ from .units import DIMENSIONS, format_number
 
 __all__ = [
     "Built", "assert_calc_contract", "assert_equations_reproduce", "build_package",
-    "compute", "job_toml", "make_job", "result", "section_results",
+    "compute", "compute_calc", "job_toml", "make_job", "result", "section_checks",
+    "section_results",
 ]
 
 DEFAULT_PACKAGE = {
@@ -119,6 +120,21 @@ def compute(job: Mapping[str, Any], plugins: PluginSet | None = None,
         with tempfile.TemporaryDirectory() as tmp:
             return compute_document(load_job_dict(job, plugins, Path(tmp)), plugins)
     return compute_document(load_job_dict(job, plugins, folder), plugins)
+
+
+def compute_calc(plugin: str, inputs: Mapping[str, Any],
+                 criteria: Mapping[str, Any] | None = None,
+                 plugins: PluginSet | None = None) -> Document:
+    """Compute a one-calc package of calc type ``plugin`` (no rendering)."""
+    calc: dict[str, Any] = {"plugin": plugin, "inputs": dict(inputs)}
+    if criteria:
+        calc["criteria"] = dict(criteria)
+    return compute(make_job([calc]), plugins)
+
+
+def section_checks(section: Section) -> dict[str, str]:
+    """{check id: status} of a section."""
+    return {c.id: c.status for c in section.checks}
 
 
 def section_results(section: Section) -> dict[str, float]:

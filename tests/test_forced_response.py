@@ -22,7 +22,14 @@ from reportgen.build import compute_document
 from reportgen.cli import main
 from reportgen.jobfile import load_job
 from reportgen.plugins import get_plugin_manager
-from reportgen.testing import assert_calc_contract, compute, make_job, result
+from reportgen.testing import (
+    assert_calc_contract,
+    compute,
+    compute_calc,
+    make_job,
+    result,
+    section_results,
+)
 from reportgen.units import STANDARD_GRAVITY
 
 SAMPLES = REPO / "sample_jobs"
@@ -42,11 +49,11 @@ def _calc(inputs: dict, criteria: dict | None = None) -> dict:
 
 
 def _doc(inputs: dict, criteria: dict | None = None):
-    return compute(make_job([_calc(inputs, criteria)]))
+    return compute_calc("forced_response", inputs, criteria)
 
 
 def _results(doc) -> dict[str, float]:
-    return {r.key: r.quantity.value for r in doc.sections[0].results}
+    return section_results(doc.sections[0])
 
 
 def _blocks(doc, kind):

@@ -33,9 +33,12 @@ from reportgen.testing import (
     assert_calc_contract,
     assert_equations_reproduce,
     compute,
+    compute_calc,
     job_toml,
     make_job,
     result,
+    section_checks,
+    section_results,
 )
 from reportgen.units import STANDARD_GRAVITY, parse_quantity
 
@@ -65,15 +68,15 @@ def _calc(inputs: dict, criteria: dict | None = None) -> dict:
 
 
 def _doc(inputs: dict, criteria: dict | None = None):
-    return compute(make_job([_calc(inputs, criteria)]))
+    return compute_calc("isolation", inputs, criteria)
 
 
 def _results(doc) -> dict[str, float]:
-    return {r.key: r.quantity.value for r in doc.sections[0].results}
+    return section_results(doc.sections[0])
 
 
 def _checks(doc) -> dict[str, str]:
-    return {c.id: c.status for c in doc.sections[0].checks}
+    return section_checks(doc.sections[0])
 
 
 def _blocks(doc, kind):
