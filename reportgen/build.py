@@ -8,7 +8,7 @@ from __future__ import annotations
 import dataclasses
 import math
 import platform
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from typing import Any
 
 from . import __version__
@@ -113,7 +113,7 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
         verification = rows
     inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
                                                 spec.raw_inputs))
-    blocks = (inputs_block,)
+    blocks: tuple[InputsTable, ...] = (inputs_block,)
     if spec.criteria or ct.criteria:
         crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given,
                                 spec.raw_criteria)
@@ -127,8 +127,8 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
         sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
 
 
-def _input_rows(specs: tuple[InputSpec, ...], values: dict[str, Any], given: frozenset[str],
-                raw: dict[str, Any]) -> tuple[InputRow, ...]:
+def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
+                given: frozenset[str], raw: Mapping[str, Any]) -> tuple[InputRow, ...]:
     rows = []
     for sp in specs:
         if sp.name not in values:

@@ -13,6 +13,7 @@ import hashlib
 import json
 import math
 import os
+from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
@@ -73,7 +74,7 @@ class VerificationCache:
         self.misses = 0
 
     def __call__(self, reg: RegisteredCalc, ctx: CalcContext,
-                 output: CalcOutput) -> list[VerificationRow] | None:
+                 output: CalcOutput) -> Sequence[VerificationRow] | None:
         if self.folder is None:
             return reg.calc_type.verify(ctx, output)
         try:

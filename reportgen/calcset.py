@@ -24,8 +24,9 @@ def build_one(path: str, opts: dict[str, Any]) -> dict[str, Any]:
     from .commands import error_text, load_plugins
     from .pipeline import build_job
 
-    options = BuildOptions(**{k: (Path(v) if k in ("out_dir", "cache_dir", "template_dir")
-                                  and v is not None else v) for k, v in opts.items()})
+    values: dict[str, Any] = {k: (Path(v) if k in ("out_dir", "cache_dir", "template_dir")
+                                  and v is not None else v) for k, v in opts.items()}
+    options = BuildOptions(**values)
     try:
         result = build_job(Path(path), load_plugins(), options)
     except ReportgenError as exc:

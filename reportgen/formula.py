@@ -64,7 +64,8 @@ def _parse(expression: str) -> ast.expr:
 def names_in(expression: str) -> set[str]:
     """Operand names an expression needs (constants and functions excluded)."""
     tree = _parse(expression)
-    called = {n.func.id for n in ast.walk(tree) if isinstance(n, ast.Call)}
+    called = {n.func.id for n in ast.walk(tree)
+              if isinstance(n, ast.Call) and isinstance(n.func, ast.Name)}
     return {n.id for n in ast.walk(tree) if isinstance(n, ast.Name)} - called - set(CONSTANTS)
 
 
@@ -74,7 +75,7 @@ def evaluate(expression: str, operands: Mapping[str, float]) -> float:
 
     def ev(node: ast.expr) -> float:
         if isinstance(node, ast.Constant):
-            return float(node.value)
+            return float(node.value)  # type: ignore[arg-type]  # _parse admits numbers only
         if isinstance(node, ast.Name):
             if node.id in operands:
                 return float(operands[node.id])
@@ -146,7 +147,7 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
 
     def tex(node: ast.expr) -> str:
         if isinstance(node, ast.Constant):
-            return _num(float(node.value), digits)
+            return _num(float(node.value), digits)  # type: ignore[arg-type]
         if isinstance(node, ast.Name):
             if values is not None and node.id in values:
                 text = _num(float(values[node.id]), digits)

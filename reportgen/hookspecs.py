@@ -33,7 +33,7 @@ hookimpl = pluggy.HookimplMarker(PROJECT)
 
 
 @hookspec
-def reportgen_register_calc_types(context: dict[str, Any]) -> list[CalcType]:
+def reportgen_register_calc_types(context: dict[str, Any]) -> list[CalcType]:  # type: ignore[empty-body]
     """Return the calc types this plugin provides.
 
     Called once per plugin when the plugin manager loads, outside pluggy's hook loop,

@@ -511,6 +511,7 @@ class _Validator:
                 self.add(msg, calc=label, field=fld)
         if len(self.problems) != before:
             return None
+        assert isinstance(cid, str) and isinstance(plugin, str)  # no problems were added
         return CalcSpec(id=cid, plugin=plugin, title=title, notes=notes, inputs=inputs,
                         given=given, criteria=criteria, criteria_given=cgiven,
                         raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw))

@@ -74,7 +74,7 @@ def _stream_text(obj, resources, maps: dict, seen: set) -> list[str]:
     xobjects = resources.get("/XObject", {}) if resources is not None else {}
     current = None
     runs: list[str] = []
-    for operands, op in pikepdf.parse_content_stream(obj, "Tf Tj TJ ' \" Do"):
+    for operands, op in pikepdf.parse_content_stream(obj, "Tf Tj TJ ' \" Do"):  # type: ignore[misc]
         name = str(op)
         if name == "Tf":
             font = fonts.get(str(operands[0]))

@@ -28,7 +28,7 @@ def _encode_error(exc: ReportgenError) -> tuple:
     return ("error", type(exc), exc.args, dict(getattr(exc, "__dict__", {})))
 
 
-def _decode_error(cls: type, args: tuple, state: dict) -> ReportgenError:
+def _decode_error(cls: type[ReportgenError], args: tuple, state: dict) -> ReportgenError:
     exc = cls.__new__(cls)
     Exception.__init__(exc, *args)
     exc.__dict__.update(state)
@@ -70,13 +70,13 @@ def run_split(work: Callable[[], Any], meanwhile: Callable[[], None]) -> Any:
         except ChildProcessError:
             pass  # already reaped while reading
     try:
-        message = pickle.loads(data) if data else ("retry",)
+        reply: tuple[Any, ...] = pickle.loads(data) if data else ("retry",)
     except Exception:
-        message = ("retry",)
-    if message[0] == "ok":
-        return message[1]
-    if message[0] == "error":
-        raise _decode_error(*message[1:])
+        reply = ("retry",)
+    if reply[0] == "ok":
+        return reply[1]
+    if reply[0] == "error":
+        raise _decode_error(reply[1], reply[2], reply[3])
     return work()  # same work here: its exception, if any, surfaces as usual
 
 

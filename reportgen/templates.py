@@ -64,10 +64,12 @@ def jinja_hook(doc: Document, plugins: PluginSet | None) -> Any:
 
     context = {"api_version": API_VERSION, "units": doc.info.units}
 
+    pm = plugins.pm
+
     def hook(env: Any) -> None:
         # Call each implementation on its own, as pluggy's loop would stop at the first
         # exception without saying whose it was.
-        for impl in plugins.pm.hook.reportgen_prepare_jinja_env.get_hookimpls():
+        for impl in pm.hook.reportgen_prepare_jinja_env.get_hookimpls():
             kwargs = {"env": env, "context": context}
             try:
                 impl.function(**{k: kwargs[k] for k in impl.argnames})

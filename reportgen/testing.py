@@ -73,7 +73,7 @@ def job_toml(job: Mapping[str, Any]) -> str:
         raise TypeError(f"cannot write {type(v).__name__} to TOML")
 
     def table(prefix: str, t: Mapping[str, Any]) -> None:
-        subs = []
+        subs: list[tuple[str, Any]] = []
         for k, v in t.items():
             if isinstance(v, Mapping):
                 subs.append((k, v))

@@ -176,7 +176,7 @@ class PendingAssets:
         jobs = [(key, (kind, block, self.units)) for key, (kind, block) in todo.items()]
         self._serial: list = []
         if pool is not None:
-            self._start(jobs, pool._max_workers, pool)
+            self._start(jobs, pool._max_workers, pool)  # type: ignore[attr-defined]
         elif workers > 1 and len(jobs) >= MIN_PARALLEL:
             self._start(jobs, workers)
         else:

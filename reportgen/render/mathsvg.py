@@ -68,7 +68,7 @@ def install_speedups() -> bool:
         return original(self, line, **kwargs)
 
     _get_height_nostretch.original = original  # type: ignore[attr-defined]  # for tests
-    Mrow._get_height_nostretch = _get_height_nostretch
+    Mrow._get_height_nostretch = _get_height_nostretch  # type: ignore[method-assign]
     _skip_text_outlines()
     return True
 
@@ -96,7 +96,7 @@ def _skip_text_outlines() -> None:
                                  f" {_zfmt(ymax - ymin)}")
         return sym
 
-    SimpleGlyph.svgsymbol = svgsymbol
+    SimpleGlyph.svgsymbol = svgsymbol  # type: ignore[method-assign]
 
 
 def _zfmt(v: float) -> str:
