@@ -266,10 +266,7 @@ def commit_outputs(outputs: list[tuple[Path, bytes]]) -> None:
             _fsync_dir(outputs[0][0].parent)
     except BaseException:
         for tmp, _ in temps:
-            try:
-                os.unlink(tmp)
-            except OSError:
-                pass
+            _discard(tmp)  # already renamed ones are simply gone
         raise
 
 
@@ -311,12 +308,16 @@ def _write_temp(target: Path, data: bytes) -> str:
             fh.flush()
             os.fsync(fh.fileno())
     except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
+        _discard(tmp)
         raise
     return tmp
+
+
+def _discard(tmp: str) -> None:
+    try:
+        os.unlink(tmp)
+    except OSError:
+        pass
 
 
 def _fsync_dir(folder: Path) -> None:
@@ -339,8 +340,5 @@ def atomic_write(target: Path, data: bytes) -> None:
     try:
         os.replace(tmp, target)
     except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
+        _discard(tmp)
         raise

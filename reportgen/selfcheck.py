@@ -127,40 +127,24 @@ SPLIT_PAGES = 24
 
 def _pages_text_split(p, pdf: bytes) -> list[str]:
     """Both halves of the page list at once on two cores; the same text as one pass."""
-    import json
     import os
+
+    from .split import run_split
 
     n = len(p.pages)
     if n < SPLIT_PAGES or not hasattr(os, "fork"):
         return _pages_text(p)
     half = n // 2
-    read_fd, write_fd = os.pipe()
-    pid = os.fork()
-    if pid == 0:
-        os.close(read_fd)
-        code = 0
-        try:
-            import pikepdf
+    first: list[str] = []
 
-            with pikepdf.open(io.BytesIO(pdf)) as mine:
-                data = json.dumps(_pages_text(mine, half)).encode("utf-8")
-            with os.fdopen(write_fd, "wb") as fh:
-                fh.write(data)
-        except BaseException:
-            code = 1
-        finally:
-            os._exit(code)
-    os.close(write_fd)
-    try:
-        first = _pages_text(p, 0, half)
-        with os.fdopen(read_fd, "rb") as fh:
-            data = fh.read()
-    finally:
-        _, status = os.waitpid(pid, 0)
-    try:
-        rest = json.loads(data) if status == 0 else None
-    except ValueError:
-        rest = None
+    def second_half() -> list[str]:
+        import pikepdf
+
+        with pikepdf.open(io.BytesIO(pdf)) as mine:
+            return _pages_text(mine, half)
+
+    # the second half in a forked child while this process reads the first half
+    rest = run_split(second_half, lambda: first.extend(_pages_text(p, 0, half)))
     if not isinstance(rest, list) or len(rest) != n - half:
         rest = _pages_text(p, half)  # the helper failed: read those pages here
     return first + rest
