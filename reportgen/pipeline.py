@@ -13,8 +13,10 @@ import signal
 import tempfile
 import threading
 import time
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 from .archive import embedded_files
 from .build import compute_document
@@ -23,6 +25,7 @@ from .jobfile import Job, load_job
 from .model import Document
 from .plugins import PluginSet
 from .results import results_bytes
+from .split import Later
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -78,17 +81,27 @@ def refuse_final(doc: Document, job: Job) -> None:
         raise JobError(problems)
 
 
-def render_package(doc: Document, job: Job, opts: BuildOptions, results: bytes,
-                   plugins: PluginSet | None = None) -> tuple[bytes, str]:
-    """Return (pdf bytes, html) for a computed document."""
-    html, files, roots = package_html(doc, job, opts, results, plugins, preload=True)
-    return package_pdf(html, job, files, roots), html
+@dataclass(frozen=True)
+class Prepared:
+    """Everything a package needs before its layout (sent whole from a split child)."""
+
+    job: Job
+    doc: Document
+    results: bytes
+    html: str
+    files: list
+    roots: tuple[Path, ...]
+    images: Any  # render.assets.StagedAssets
 
 
 def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
                  plugins: PluginSet | None = None, *, preload: bool = False, pool=None,
-                 prefetched=None):
-    """Draw the assets and write the final HTML: (html, embedded files, template roots)."""
+                 prefetched=None, later: bool = False) -> tuple[Prepared, Iterator]:
+    """Draw the assets and write the final HTML.
+
+    Returns the prepared package and an iterator over the figures still being drawn
+    (empty unless ``later``): with ``later`` the layout may start before they exist.
+    """
     from .archive import manifest_bytes
     from .render.assets import start_assets
     from .render.html import render_html
@@ -101,24 +114,46 @@ def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
         from .render.pdf import preload_renderer
 
         preload_renderer()  # import WeasyPrint while the workers draw
-    assets = pending.result()
-    html = render_html(doc, assets, template_dir=template_dir,
+    staged, rest = pending.stage(later=later and pending.parallel)
+    html = render_html(doc, staged.assets, template_dir=template_dir,
                        logo=firm_logo(template_dir), extra_hook=jinja_hook(doc, plugins))
     files = embedded_files(job, results, manifest_bytes(doc, job, results))
     roots = (template_dir,) if template_dir else ()
-    return html, files, roots
+    return Prepared(job=job, doc=doc, results=results, html=html, files=files, roots=roots,
+                    images=staged), rest
 
 
-def package_pdf(html: str, job: Job, files, roots) -> bytes:
+def package_pdf(prep: Prepared, later: Later | None = None) -> tuple[bytes, dict[str, bytes]]:
+    """Lay the package out: (PDF bytes, every image's SVG by URL).
+
+    Figures still being drawn come through ``later`` when the renderer paints them; one
+    that does not come (its worker failed) is drawn here.
+    """
     from .render.pdf import write_pdf
 
-    return write_pdf(html, base_dir=job.folder, attachments=files, date=job.info.date,
-                     extra_roots=roots)
+    images = prep.images
+    got: dict[str, bytes] = {}
+
+    def get_later(url: str) -> bytes:
+        if url not in got:
+            payload = later.get(url) if later is not None else None
+            got[url] = payload if payload is not None else images.draw_here(url)
+        return got[url]
+
+    pdf = write_pdf(prep.html, base_dir=prep.job.folder, attachments=prep.files,
+                    date=prep.job.info.date, extra_roots=prep.roots, images=images.ready,
+                    later=images.later, get_later=get_later)
+    payloads = dict(images.ready)
+    payloads.update((url, get_later(url)) for url in images.later)
+    return pdf, payloads
 
 
 def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
-                    preload: bool = False):
-    """Everything before the layout: (job, doc, results.json, html, files, roots)."""
+                    preload: bool = False, later: bool = False) -> tuple[Prepared, Iterator]:
+    """Everything before the layout, and the figures still being drawn (see package_html).
+
+    The drawing workers stop when the iterator is exhausted or closed.
+    """
     job = load_job(path, plugins)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
@@ -132,15 +167,53 @@ def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
     if opts.split and opts.workers > 1:
         from .render.assets import warm_pool
 
-        pool = warm_pool(opts.workers)  # drawing workers load matplotlib meanwhile
+        pool = warm_pool(opts.workers)  # drawing workers load the typesetter meanwhile
     try:
-        return _prepare(job, plugins, opts, preload, pool)
-    finally:
-        if pool is not None:  # wait: a worker left behind would outlive the build
-            pool.shutdown(wait=True, cancel_futures=True)
+        prep, rest = _prepare(job, plugins, opts, preload, pool, later)
+    except BaseException:
+        _stop(pool)
+        raise
+    return prep, _Later(rest, pool)
 
 
-def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, pool):
+def _stop(pool) -> None:
+    if pool is not None:  # wait: a worker left behind would outlive the build
+        pool.shutdown(wait=True, cancel_futures=True)
+
+
+class _Later:
+    """The drawings still to come, then the workers stopped: on exhaustion, on error,
+    or on ``close()`` even if nothing was taken (a worker left would outlive the build).
+    """
+
+    def __init__(self, rest, pool):
+        self._rest, self._pool, self._started = rest, pool, False
+
+    def __iter__(self) -> _Later:
+        return self
+
+    def __next__(self):
+        if not self._started:
+            from .render.assets import lower_priority
+
+            self._started = True
+            lower_priority(self._pool)  # the layout has started: it comes first now
+        try:
+            return next(self._rest)
+        except BaseException:
+            self.close()
+            raise
+
+    def close(self) -> None:
+        close = getattr(self._rest, "close", None)
+        if close is not None:
+            close()
+        _stop(self._pool)
+        self._pool = None
+
+
+def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, pool,
+             later: bool) -> tuple[Prepared, Iterator]:
     verify = verification_cache(opts)
     prefetched = None
     if pool is not None:
@@ -162,34 +235,43 @@ def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, po
     if opts.final:
         refuse_final(doc, job)
     results = results_bytes(doc)
-    html, files, roots = package_html(doc, job, opts, results, plugins, preload=preload,
-                                      pool=pool, prefetched=prefetched)
-    return job, doc, results, html, files, roots
+    return package_html(doc, job, opts, results, plugins, preload=preload, pool=pool,
+                        prefetched=prefetched, later=later)
 
 
 def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
-    from .split import can_split, run_split
+    from .split import can_split, run_split_stream
 
+    later: Later | None = None
     if opts.split and can_split():
-        # compute and draw in a forked child while WeasyPrint imports here (reportgen.split)
+        # compute in a forked child while WeasyPrint imports here; the figures it is
+        # still drawing arrive while the layout runs (reportgen.split)
         from .render.pdf import preload_renderer
 
-        job, doc, results, html, files, roots = run_split(
-            lambda: prepare_package(path, plugins, opts), preload_renderer)
+        prep, later = run_split_stream(
+            lambda: prepare_package(path, plugins, opts, later=True), preload_renderer)
     else:
-        job, doc, results, html, files, roots = prepare_package(path, plugins, opts,
-                                                                preload=True)
+        prep, rest = prepare_package(path, plugins, opts, preload=True)
+        for _ in rest:  # nothing is left for later here; this stops the workers
+            pass
+    try:
+        pdf, payloads = package_pdf(prep, later)
+    finally:
+        if later is not None:
+            later.close()
+    job, doc = prep.job, prep.doc
     pdf_path, results_path = output_paths(job, opts.out_dir)
-    pdf = package_pdf(html, job, files, roots)
     if opts.self_check:
         from .selfcheck import self_check
 
         self_check(pdf, doc)
-    outputs = [(results_path, results), (pdf_path, pdf)]
+    outputs = [(results_path, prep.results), (pdf_path, pdf)]
     html_path = None
     if opts.html:
+        from .render.assets import inline_assets
+
         html_path = opts.out_dir / f"{job.stem}.html"
-        outputs.insert(0, (html_path, html.encode("utf-8")))
+        outputs.insert(0, (html_path, inline_assets(prep.html, payloads).encode("utf-8")))
     try:
         sweep_stale_parts(opts.out_dir, [p for p, _ in outputs])
         commit_outputs(outputs)

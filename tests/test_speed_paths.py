@@ -86,18 +86,24 @@ def test_every_glyph_is_kept_as_text_or_outline(latex_corpus):
         assert n_text > len(after.findall(ns + "use")), tex  # most glyphs became text
 
 
-def test_math_font_subset_is_deterministic_and_covers_the_glyphs():
+def test_math_font_is_deterministic_unshaped_and_covers_the_equation_glyphs():
     import io
 
     from fontTools.ttLib import TTFont
 
-    from reportgen.render.mathsvg import subset_font
+    from reportgen.render.mathsvg import latex_svg, math_font
 
-    chars = "0123456789=+×" + "\U0001d45a\U0001d458\U0001d714"  # digits, 𝑚 𝑘 𝜔
-    a, b = subset_font(chars), subset_font(chars)
-    assert a == b
-    cmap = TTFont(io.BytesIO(a)).getBestCmap()
-    assert {ord(c) for c in chars} <= set(cmap)
+    a = math_font()
+    math_font.cache_clear()
+    assert math_font() == a  # same bytes every time: the PDF does not depend on the run
+    font = TTFont(io.BytesIO(a))
+    # nothing left for the renderer to shape: the SVG text names its glyphs one by one
+    assert not {"GSUB", "GPOS", "GDEF", "kern", "MATH"} & set(font.keys())
+    svg = latex_svg(r"\omega_n = \sqrt{\frac{k}{m}} = 2 \pi f_n").decode("utf-8")
+    import re
+
+    chars = set("".join(re.findall(r"<text [^>]*>([^<]*)</text>", svg)))
+    assert chars and {ord(c) for c in chars} <= set(font.getBestCmap())
 
 
 def _free_job(plugins, tmp_path: Path):
@@ -173,7 +179,7 @@ def test_outlines_skipped_for_text_glyphs_change_nothing(latex_corpus):
         assert fast == full, tex
 
 
-def test_self_check_reads_the_same_text_in_two_processes(tmp_path, monkeypatch):
+def test_self_check_pattern_reader_matches_the_content_parser(tmp_path):
     import io
 
     import pikepdf
@@ -182,7 +188,79 @@ def test_self_check_reads_the_same_text_in_two_processes(tmp_path, monkeypatch):
 
     assert main_build(tmp_path) in (0, 1)
     pdf = next(tmp_path.glob("*.pdf")).read_bytes()
-    monkeypatch.setattr(selfcheck, "SPLIT_PAGES", 2)
     with pikepdf.open(io.BytesIO(pdf)) as p:
         assert len(p.pages) >= 4
-        assert selfcheck._pages_text_split(p, pdf) == selfcheck._pages_text(p)
+        maps: dict = {}
+        parsed = [selfcheck._norm(" ".join(selfcheck._stream_text_parsed(
+            page.obj, page.obj.get("/Resources"), maps, set()))) for page in p.pages]
+        assert selfcheck._pages_text(p) == parsed
+    # a stream the pattern reader does not know (a literal string) goes to the parser
+    assert not selfcheck._plain(b"BT /F1 12 Tf (Hello) Tj ET")
+    assert selfcheck._plain(b"BT /F1 12 Tf [<0026>-59<0024>] TJ ET")
+
+
+def _figure(panels: int):
+    from reportgen.model import Figure, Panel, Series
+
+    panel = Panel(series=(Series(x=(0.0, 1.0, 2.0), y=(1.0, 0.5, 0.25), label="a"),),
+                  y_label="y")
+    return Figure(key=f"f{panels}", caption="c", alt="a", x_label="x",
+                  panels=(panel,) * panels)
+
+
+@pytest.mark.parametrize("panels", [1, 2, 3])
+def test_a_figure_has_the_size_announced_before_it_is_drawn(panels):
+    # The layout starts before the figures are drawn, with stand-ins of this size.
+    from reportgen.render.figures import figure_points, figure_svg
+    from reportgen.render.pdf import _svg_number
+
+    fig = _figure(panels)
+    root = ET.fromstring(figure_svg(fig))
+    w, h = figure_points(fig)
+    assert (root.get("width"), root.get("height")) == (f"{_svg_number(w)}pt",
+                                                       f"{_svg_number(h)}pt")
+
+
+def test_images_drawn_during_the_layout_give_the_same_pdf():
+    """Figures and equations handed over while WeasyPrint lays out (and a figure whose
+    announced size is wrong, which makes the layout start again) give the bytes of a
+    layout with every image present from the start."""
+    from reportgen.pipeline import BuildOptions, Prepared, package_html, package_pdf
+    from reportgen.results import results_bytes
+    from reportgen.split import local_later
+
+    plugins = load_plugins()
+    job = load_job(REPO / "sample_jobs" / "qep-104-chiller-ch1.toml", plugins)
+    doc = compute_document(job, plugins)
+    opts = BuildOptions(out_dir=Path("unused"), use_cache=False)
+    prep, rest = package_html(doc, job, opts, results_bytes(doc), plugins)
+    assert not list(rest)
+    eager, payloads = package_pdf(prep)
+    images = prep.images
+    kinds = dict(_kinds(images))
+    assert {"figure", "equation"} <= set(kinds.values())
+    fonts = {u: b for u, b in images.ready.items() if u not in kinds}
+    for wrong in (False, True):
+        later = {url: (None if kind == "equation" else _size_of(images, url, wrong))
+                 for url, kind in kinds.items()}
+        staged = type(images)(assets=images.assets, ready=dict(fonts), later=later,
+                              jobs={u: (k, None, "SI") for u, k in kinds.items()})
+        feed = local_later((u, payloads[u]) for u in kinds)
+        pdf, got = package_pdf(Prepared(**{**prep.__dict__, "images": staged}), feed)
+        assert pdf == eager, f"wrong size announced: {wrong}"
+        assert got == payloads
+
+
+def _kinds(images):
+    block_kind = {}
+    for block, url in images.assets.items():
+        block_kind[url] = "figure" if type(block).__name__ == "Figure" else "equation"
+    return block_kind.items()
+
+
+def _size_of(images, url, wrong: bool):
+    from reportgen.render.figures import figure_points
+
+    block = next(b for b, u in images.assets.items() if u == url)
+    w, h = figure_points(block)
+    return (w, h + 36.0) if wrong else (w, h)

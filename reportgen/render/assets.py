@@ -10,15 +10,19 @@ from __future__ import annotations
 import hashlib
 import json
 import os
-from collections.abc import Iterable
+import re
+from collections.abc import Generator, Iterable, Iterator
 from concurrent.futures import Future, ProcessPoolExecutor
+from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
 from ..cache import default_cache_dir
 from ..model import Document, Equation, Figure, to_json
+from .figures import figure_points
 from .html import data_uri
+from .pdf import ASSET_SCHEME
 
 #: Bump when the drawing code changes, so cached assets of the old look are not reused.
 RENDERER_TAG = "assets/4"
@@ -62,17 +66,24 @@ def _render_many(jobs: list[tuple[str, Any, str]]) -> list[bytes]:
 
 
 def _warm_up() -> None:
-    # Runs as each worker starts: the drawing libraries load (~0.7 s) while the parent
-    # is still computing, so the first figure is drawn as soon as it is asked for.
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot  # noqa: F401
-
+    # Runs as each worker starts: the math typesetter and its font load (~0.15 s) while
+    # the parent is still computing, so the first equation is set as soon as it is asked
+    # for. matplotlib (~0.5 s) loads with the first figure: a warm rebuild seldom needs it.
     from .mathsvg import _math_font, install_speedups
 
     install_speedups()
     _math_font()
+
+
+def lower_priority(pool: ProcessPoolExecutor | None) -> None:
+    """Let the layout process have the CPU first: the drawing left is not in its way
+    until the layout paints the pages, so the workers may yield to it meanwhile."""
+    pids = list(getattr(pool, "_processes", None) or {}) if pool is not None else []
+    for pid in pids:
+        try:
+            os.setpriority(os.PRIO_PROCESS, pid, 10)
+        except (OSError, AttributeError):
+            pass
 
 
 def _noop() -> None:
@@ -125,9 +136,40 @@ class AssetCache:
 
 
 class Assets(dict):
-    """{block: data URI}, plus the style sheet the equations need (their math font)."""
+    """{block: image URL}, plus the style sheet the equations need (their math font)."""
 
     css: str = ""
+
+
+def asset_url(key: str) -> str:
+    return ASSET_SCHEME + key
+
+
+@dataclass
+class StagedAssets:
+    """A package's images as the layout gets them: ``assets`` maps each block to its
+    ``reportgen-asset:`` URL; ``ready`` holds the drawings that exist (and the math
+    font); ``later`` names those still being drawn, with the size in points where it is
+    known beforehand (figures), and ``jobs`` how to draw each of them here should their
+    worker fail."""
+
+    assets: Assets
+    ready: dict[str, bytes]
+    later: dict[str, tuple[float, float] | None] = field(default_factory=dict)
+    jobs: dict[str, tuple[str, Any, str]] = field(default_factory=dict)
+
+    def draw_here(self, url: str) -> bytes:
+        return _render_one(self.jobs[url])
+
+
+def inline_assets(html: str, payloads: dict[str, bytes]) -> str:
+    """The HTML with every ``reportgen-asset:`` URL replaced by its data URI: the
+    self-contained page that ``--html`` writes."""
+    if ASSET_SCHEME not in html:
+        return html
+    pattern = re.compile(re.escape(ASSET_SCHEME) + r"[0-9a-f]{64}")
+    return pattern.sub(lambda m: data_uri(payloads[m.group(0)])
+                       if m.group(0) in payloads else m.group(0), html)
 
 
 def iter_asset_blocks(doc: Document) -> Iterable[tuple[str, Equation | Figure]]:
@@ -167,6 +209,7 @@ class PendingAssets:
             else:
                 todo[key] = (kind, block)
         self._pool: ProcessPoolExecutor | None = None
+        self._own_pool = False
         self._futures: list[tuple[list[str], Future]] = []
         for key, fut in (prefetched or {}).items():
             if key in todo:  # already being drawn (started before the document existed)
@@ -190,56 +233,129 @@ class PendingAssets:
                pool: ProcessPoolExecutor | None = None) -> None:
         import multiprocessing
 
-        # Figures cost ~10x an equation: deal them out first, then equations in chunks,
-        # so the workers finish together. Fork: workers inherit the loaded modules.
-        jobs = sorted(jobs, key=lambda j: j[1][0] != "figure")
+        # Equations first, in chunks: the page text cannot be laid out without them.
+        # Then the figures one by one, in page order: the layout can start without them.
+        # Fork: workers inherit the loaded modules.
         ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
         n = workers if pool is not None else min(workers, len(jobs))
+        self._own_pool = pool is None
         self._pool = pool or ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         chunks: list[list[tuple[str, Any]]] = []
         figs = [j for j in jobs if j[1][0] == "figure"]
         eqs = [j for j in jobs if j[1][0] != "figure"]
-        chunks += [[j] for j in figs]
         size = max(1, len(eqs) // (n * 3) or 1)
         chunks += [eqs[i:i + size] for i in range(0, len(eqs), size)]
+        chunks += [[j] for j in figs]
         for chunk in chunks:
             fut = self._pool.submit(_render_many, [j for _, j in chunk])
             self._futures.append(([k for k, _ in chunk], fut))
 
-    def result(self) -> Assets:
+    def stage(self, later: bool = False) -> tuple[StagedAssets, Iterator[tuple[str, bytes]]]:
+        """Return the images the layout starts with, and an iterator over the rest.
+
+        Unless ``later``, every image is waited for first and the iterator is empty.
+        With ``later``, the images still being drawn are left to the iterator, which
+        yields (URL, SVG) as each is drawn (in any order), stores it in the cache and, at
+        its end, stops a pool this object started. A figure's size is known before it is
+        drawn; an equation's is not, so the layout waits for an equation when it reaches
+        it, and for a figure only when it paints it.
+        """
         fresh: dict[str, bytes] = {}
+        pending: list[tuple[list[str], Future]] = []
         try:
             for keys, fut in self._futures:
+                if later:
+                    pending.append((keys, fut))
+                    continue
                 got = fut.result()
                 fresh.update(zip(keys, [got] if isinstance(got, bytes) else got, strict=True))
-        finally:
-            if self._pool is not None:
-                self._pool.shutdown(wait=True, cancel_futures=True)
-                self._pool = None
-        for key, job in self._serial:
-            fresh[key] = _render_one(job)
+            for key, job in self._serial:
+                fresh[key] = _render_one(job)
+        except BaseException:
+            self._stop_pool()
+            raise
         for key, payload in fresh.items():
             self.cache.put(key, payload)
         self.payloads.update(fresh)
-        out = Assets()
+        assets = Assets()
         for block, (_kind, key) in self.keys.items():
-            out[block] = data_uri(self.payloads[key])
-        out.css = self._math_css()
+            assets[block] = asset_url(key)
+        staged = StagedAssets(assets=assets, ready={asset_url(k): v for k, v in
+                                                    self.payloads.items()})
+        if any(kind == "equation" for kind, _key in self.keys.values()):
+            from .mathsvg import font_face_css, math_font
+
+            font = math_font()
+            url = asset_url(hashlib.sha256(font).hexdigest())
+            staged.ready[url] = font
+            assets.css = font_face_css(url)
+        block_of = {key: (kind, block) for block, (kind, key) in self.keys.items()}
+        for keys, _fut in pending:
+            for key in keys:
+                kind, block = block_of[key]
+                staged.later[asset_url(key)] = (figure_points(block) if kind == "figure"
+                                                else None)
+                staged.jobs[asset_url(key)] = (kind, block, self.units)
+        return staged, Drawings(self, pending)
+
+    def _stop_pool(self) -> None:
+        if self._own_pool and self._pool is not None:
+            self._pool.shutdown(wait=True, cancel_futures=True)
+        self._pool = None
+
+    def result(self) -> Assets:
+        """{block: data URI}: every image drawn and embedded (the plugin kit's form)."""
+        staged, rest = self.stage(later=False)
+        for _ in rest:
+            pass
+        out = Assets()
+        for block, url in staged.assets.items():
+            out[block] = data_uri(staged.ready[url])
+        if staged.assets.css:
+            from .mathsvg import font_face_css, math_font
+
+            out.css = font_face_css(data_uri(math_font(), "font/ttf"))
         return out
 
-    def _math_css(self) -> str:
-        from .mathsvg import font_face_css, font_key, subset_font, used_chars
 
-        eq_keys = {key for kind, key in self.keys.values() if kind == "equation"}
-        chars = used_chars(self.payloads[k] for k in sorted(eq_keys))
-        if not chars:
-            return ""
-        key = font_key(chars)
-        font = self.cache.get(key)
-        if font is None:
-            font = subset_font(chars)
-            self.cache.put(key, font)
-        return font_face_css(font)
+class Drawings:
+    """The images still being drawn, as (URL, SVG) in the order they are done; each is
+    stored in the cache as it comes. ``close()`` (or the end) stops the pool the assets
+    started, whether or not anything was taken."""
+
+    def __init__(self, owner: PendingAssets, pending: list[tuple[list[str], Future]]):
+        self._owner = owner
+        self._pending = pending
+        self._it: Generator[tuple[str, bytes], None, None] | None = None
+
+    def __iter__(self) -> Drawings:
+        return self
+
+    def __next__(self) -> tuple[str, bytes]:
+        if self._it is None:
+            self._it = self._each()
+        try:
+            return next(self._it)
+        except BaseException:
+            self.close()
+            raise
+
+    def _each(self) -> Generator[tuple[str, bytes], None, None]:
+        from concurrent.futures import as_completed
+
+        keys_of = {fut: keys for keys, fut in self._pending}
+        for fut in as_completed(keys_of):
+            got = fut.result()
+            for key, payload in zip(keys_of[fut], [got] if isinstance(got, bytes) else got,
+                                    strict=True):
+                self._owner.cache.put(key, payload)
+                self._owner.payloads[key] = payload
+                yield asset_url(key), payload
+
+    def close(self) -> None:
+        if self._it is not None:
+            self._it.close()
+        self._owner._stop_pool()
 
 
 def start_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,
@@ -266,9 +382,9 @@ def prefetch(blocks: Iterable[Any], units: str, *, cache_dir: Path | None, use_c
             continue
         (figs if kind == "figure" else eqs)[key] = (kind, block, units)
     out: dict[str, Future] = {}
-    for key, job in figs.items():  # the slow ones first
+    for key, job in eqs.items():  # the layout waits for these
         out[key] = pool.submit(_render_one, job)
-    for key, job in eqs.items():
+    for key, job in figs.items():  # and can start without these
         out[key] = pool.submit(_render_one, job)
     return out
 

@@ -13,6 +13,21 @@ _STYLE = {"line": "-", "dashed": "--", "dotted": ":", "points": "none"}
 _COLORS = ("#1f3b5c", "#b5651d", "#4f7f3a", "#7a3b69", "#5c5c5c", "#2f7d8c")
 
 
+#: figure width on the page (inches): the text block's width
+FIGURE_WIDTH_IN = 6.3
+
+
+def figure_inches(fig: Figure) -> tuple[float, float]:
+    """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.7 in more
+    for each further panel. Known before drawing, so the layout can start without it."""
+    return FIGURE_WIDTH_IN, 2.5 + 1.7 * (len(fig.panels) - 1)
+
+
+def figure_points(fig: Figure) -> tuple[float, float]:
+    w, h = figure_inches(fig)
+    return w * 72.0, h * 72.0
+
+
 def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
     import matplotlib
 
@@ -27,8 +42,7 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
         "path.simplify": True,
     })
     n = len(fig.panels)
-    height = 2.5 + 1.7 * (n - 1)
-    f, axes = plt.subplots(n, 1, figsize=(6.3, height), sharex=True, squeeze=False)
+    f, axes = plt.subplots(n, 1, figsize=figure_inches(fig), sharex=True, squeeze=False)
     try:
         for ax, panel in zip(axes[:, 0], fig.panels, strict=True):
             colour = 0

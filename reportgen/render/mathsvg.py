@@ -9,11 +9,8 @@ no Unicode code point (stretched delimiters, radical parts) stay outlines.
 
 from __future__ import annotations
 
-import hashlib
 import io
-import re
 import xml.etree.ElementTree as ET
-from collections.abc import Iterable
 from functools import lru_cache
 
 #: The family name the equation SVGs ask for; private, so no installed font can stand in.
@@ -198,49 +195,28 @@ def _char_for(sid: str, cmap) -> str | None:
     return None
 
 
-_TEXT_RUN = re.compile(rb"<text [^>]*>([^<]*)</text>")
+@lru_cache(maxsize=1)
+def math_font() -> bytes:
+    """The math font for equation text: ziamath's font without its layout tables.
 
-
-def used_chars(svgs: Iterable[bytes]) -> str:
-    chars: set[str] = set()
-    for svg in svgs:
-        for m in _TEXT_RUN.finditer(svg):
-            chars.update(_unescape(m.group(1).decode("utf-8")))
-    return "".join(sorted(chars))
-
-
-def _unescape(text: str) -> str:
-    return text.replace("&lt;", "<").replace("&gt;", ">").replace("&amp;", "&")
-
-
-def font_key(chars: str) -> str:
-    return hashlib.sha256(("mathfont/1\0" + chars).encode("utf-8")).hexdigest()
-
-
-def subset_font(chars: str) -> bytes:
-    """The math font cut down to ``chars`` (deterministic: no timestamp is recalculated)."""
+    The equations' text places one glyph per position itself, so the renderer must not
+    shape it (no substitutions, no kerning): without GSUB, GPOS, GDEF, kern and MATH it
+    draws exactly the glyphs named. The whole character map stays, so the font is the
+    same for every package; the PDF writer embeds only the glyphs a package uses.
+    """
     from importlib import resources
 
-    from fontTools import subset
     from fontTools.ttLib import TTFont
 
     path = str(resources.files("ziamath") / "fonts" / "STIXTwoMath-Regular.ttf")
     font = TTFont(path, lazy=True, recalcTimestamp=False)
-    opts = subset.Options()
-    opts.layout_features = []  # one glyph per text position: nothing to shape
-    opts.drop_tables += ["MATH", "GSUB", "GPOS", "GDEF", "kern"]
-    opts.hinting = False
-    opts.notdef_outline = True
-    sub = subset.Subsetter(opts)
-    sub.populate(unicodes=[ord(c) for c in chars])
-    sub.subset(font)
+    for tag in ("MATH", "GSUB", "GPOS", "GDEF", "kern"):
+        if tag in font:
+            del font[tag]
     buf = io.BytesIO()
     font.save(buf)
     return buf.getvalue()
 
 
-def font_face_css(font: bytes) -> str:
-    import base64
-
-    data = base64.b64encode(font).decode("ascii")
-    return f"@font-face {{ font-family: '{MATH_FAMILY}'; src: url(data:font/ttf;base64,{data}); }}"
+def font_face_css(url: str) -> str:
+    return f"@font-face {{ font-family: '{MATH_FAMILY}'; src: url({url}); }}"

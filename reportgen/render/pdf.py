@@ -1,8 +1,16 @@
 """The thin WeasyPrint adapter: final HTML -> archival PDF (PDF/A-3b) bytes.
 
-Only ``data:`` URIs and files inside the job's own folder are ever fetched; any other
+Only ``data:`` URIs, the package's own figures and equations (``reportgen-asset:`` URLs,
+served from memory) and files inside the job's own folder are ever fetched; any other
 URL (other files, symlinks out of the folder, the network) stops the build.
 WeasyPrint is imported here only, lazily, so the command line starts fast.
+
+Figures still being drawn when the layout starts are *later* images: their size is known
+in advance (the figure's page size), so WeasyPrint lays the pages out with a stand-in and
+asks for the drawing only when it paints the page, by which time a worker has drawn it.
+The PDF is byte-identical to one laid out with every image present from the start
+(tested); if a drawing does not have the size announced, the layout is redone with all
+images present.
 """
 
 from __future__ import annotations
@@ -10,6 +18,7 @@ from __future__ import annotations
 import datetime as _dt
 import logging
 import os
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 from urllib.parse import unquote, urlparse
@@ -17,6 +26,8 @@ from urllib.parse import unquote, urlparse
 from ..errors import RenderError
 
 PDF_VARIANT = "pdf/a-3b"
+#: URL scheme of the package's figures and equations in the HTML handed to the renderer
+ASSET_SCHEME = "reportgen-asset:"
 
 
 @dataclass(frozen=True, slots=True)
@@ -34,15 +45,21 @@ def _fetcher_class():
     class JobFolderFetcher(URLFetcher):
         """Serve data: URIs and regular files under the job folder; refuse the rest."""
 
-        def __init__(self, root: Path | None, extra_roots: tuple[Path, ...] = ()):
+        def __init__(self, root: Path | None, extra_roots: tuple[Path, ...] = (),
+                     assets: Callable[[str], bytes | None] | None = None):
             super().__init__(allowed_protocols={"data", "file"}, allow_redirects=False)
             roots = (r.resolve() for r in ((root,) if root else ()) + extra_roots)
             # a job saved at the top of the file system must not open the whole machine
             self.roots = tuple(r for r in roots if r != Path(r.anchor))
             self.refused: list[str] = []
+            self.assets = assets
 
         def fetch(self, url, headers=None):
             scheme = url.split(":", 1)[0].lower()
+            if url.startswith(ASSET_SCHEME) and self.assets is not None:
+                payload = self.assets(url)
+                if payload is not None:
+                    return URLFetcherResponse(url, payload, {"Content-Type": "image/svg+xml"})
             if scheme == "data":
                 return super().fetch(url, headers)
             if scheme == "file":
@@ -75,9 +92,96 @@ def preload_renderer() -> None:
     import weasyprint  # noqa: F401
 
 
+class _LaterSizeMismatch(Exception):
+    """A later image's drawing does not have the size its stand-in announced."""
+
+
+def _svg_number(x: float) -> str:
+    return f"{x:f}".rstrip("0").rstrip(".")
+
+
+def _later_image_class():
+    from xml.etree import ElementTree
+
+    from weasyprint.images import SVGImage
+
+    class _SVGContext:
+        """What an SVG image uses of the layout: the fonts; it loads no images itself."""
+
+        def __init__(self, font_config):
+            self.font_config = font_config
+
+        def get_image_from_uri(self, **_kw):
+            return None
+
+    class LaterSVG:
+        """An SVG image whose drawing may arrive after the layout has started.
+
+        With its size known beforehand (a figure), layout is answered from a stand-in of
+        that size and only painting waits for the drawing; otherwise (an equation) the
+        layout waits for it when it reaches it.
+        """
+
+        def __init__(self, url, size_pt, get_payload, url_fetcher, font_config):
+            self.url = url
+            self._context = _SVGContext(font_config)
+            self._fetcher = url_fetcher
+            self._get = get_payload
+            self._real = None
+            self._stub = None
+            if size_pt is not None:
+                w, h = (_svg_number(v) for v in size_pt)
+                stub = (f'<svg xmlns="http://www.w3.org/2000/svg" width="{w}pt"'
+                        f' height="{h}pt" viewBox="0 0 {w} {h}"/>')
+                self._stub = SVGImage(ElementTree.fromstring(stub), url, url_fetcher,
+                                      self._context)
+
+        def _load(self):
+            if self._real is None:
+                tree = ElementTree.fromstring(self._get(self.url))
+                real = SVGImage(tree, self.url, self._fetcher, self._context)
+                if self._stub is not None and any(
+                        real.get_intrinsic_size(1, fs) != self._stub.get_intrinsic_size(1, fs)
+                        for fs in (12, 16)):
+                    raise _LaterSizeMismatch(self.url)
+                self._real = real
+            return self._real
+
+        def get_intrinsic_size(self, image_resolution, font_size):
+            image = self._stub if self._stub is not None else self._load()
+            return image.get_intrinsic_size(image_resolution, font_size)
+
+        def draw(self, stream, concrete_width, concrete_height, style):
+            self._load().draw(stream, concrete_width, concrete_height, style)
+
+    return LaterSVG
+
+
 def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFile],
-              date: str, extra_roots: tuple[Path, ...] = ()) -> bytes:
-    """Lay out ``html`` and return the PDF bytes (PDF/A-3b, deterministic)."""
+              date: str, extra_roots: tuple[Path, ...] = (),
+              images: Mapping[str, bytes] | None = None,
+              later: Mapping[str, tuple[float, float] | None] | None = None,
+              get_later: Callable[[str], bytes] | None = None) -> bytes:
+    """Lay out ``html`` and return the PDF bytes (PDF/A-3b, deterministic).
+
+    ``images`` serves the HTML's ``reportgen-asset:`` URLs; ``later`` lists those still
+    being drawn, with their size in points where it is known beforehand (else None),
+    and ``get_later(url)`` waits for one of them.
+    """
+    images = dict(images or {})
+    later = dict(later or {}) if get_later is not None else {}
+    try:
+        return _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
+                          get_later)
+    except _LaterSizeMismatch:
+        # a drawing is not the size announced: lay out again with every image present
+        assert get_later is not None
+        images.update((url, get_later(url)) for url in later)
+        return _write_pdf(html, base_dir, attachments, date, extra_roots, images, {}, None)
+
+
+def _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
+               get_later) -> bytes:
     # fontTools (used when HarfBuzz subsetting is not installed) stamps the clock into
     # each embedded font unless SOURCE_DATE_EPOCH is set: pin it to the revision date.
     stamp = _dt.datetime.fromisoformat((date or "2000-01-01") + "T00:00:00+00:00")
@@ -85,9 +189,22 @@ def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFil
     logging.getLogger("weasyprint").setLevel(logging.ERROR)
     logging.getLogger("fontTools").setLevel(logging.ERROR)
     import weasyprint
+    from weasyprint.text.fonts import FontConfiguration
     from weasyprint.urls import FatalURLFetchingError
 
-    fetcher = _fetcher_class()(base_dir, extra_roots)
+    def asset(url: str) -> bytes | None:
+        if url in images:
+            return images[url]
+        return get_later(url) if url in later and get_later is not None else None
+
+    fetcher = _fetcher_class()(base_dir, extra_roots, asset)
+    font_config = FontConfiguration()
+    if later:
+        lazy = _later_image_class()
+        cache: dict | None = {url: lazy(url, size, get_later, fetcher, font_config)
+                              for url, size in later.items()}
+    else:
+        cache = None
     try:
         # a data: URL carries the MIME type into the file's /Subtype (PDF/A-3 wants it);
         # WeasyPrint ignores a type given any other way
@@ -97,10 +214,11 @@ def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFil
                 for a in attachments]
         base_url = (base_dir.resolve().as_uri() + "/") if base_dir else None
         doc = weasyprint.HTML(string=html, base_url=base_url, url_fetcher=fetcher)
-        pdf = doc.write_pdf(attachments=atts, pdf_variant=PDF_VARIANT, uncompressed_pdf=False)
+        pdf = doc.write_pdf(attachments=atts, pdf_variant=PDF_VARIANT, uncompressed_pdf=False,
+                            cache=cache, font_config=font_config)
     except FatalURLFetchingError as exc:
         raise RenderError(str(exc).strip('"')) from None
-    except RenderError:
+    except (RenderError, _LaterSizeMismatch):
         raise
     except Exception as exc:
         raise RenderError(f"the PDF renderer failed: {type(exc).__name__}: {exc}") from exc
