@@ -34,7 +34,7 @@ from reportgen import (
 )
 from reportgen.units import STANDARD_GRAVITY, format_number, table_display
 
-__version__ = "0.1.0"
+__version__ = "0.2.0"
 
 THOMSON = Source(key="thomson-3.5", citation=(
     "W.T. Thomson & M.D. Dahleh, Theory of Vibration with Applications, 5th ed., Prentice"
@@ -69,13 +69,25 @@ def transmissibility(r: float | np.ndarray, zeta: float) -> Any:
 def required_ratio(target: float, zeta: float) -> float:
     """The frequency ratio r > √2 at which T(r, ζ) equals ``target`` (0 < target < 1).
 
-    T falls monotonically from 1 at r = √2 towards 0, so one root exists; it is
-    bracketed by doubling and then found by Brent's method.
+    T² = (1 + 4ζ²x)/((1 − x)² + 4ζ²x) with x = r² is a quadratic in x:
+    T²·x² + (4ζ²T² − 2T² − 4ζ²)·x + (T² − 1) = 0. Its constant term is negative and its
+    leading one positive, so exactly one root is positive; the middle coefficient is
+    negative, so −b + √(b² − 4ac) adds two positive numbers (no cancellation).
+    For ζ = 0 it is the handbook r² = 1 + 1/T.
     """
-    from scipy.optimize import brentq
-
     if not 0.0 < target < 1.0:
         raise ValueError(f"target transmissibility {target} is not between 0 and 1")
+    t2 = target * target
+    a4 = 4.0 * zeta * zeta
+    b = a4 * t2 - 2.0 * t2 - a4
+    x = (-b + math.sqrt(b * b - 4.0 * t2 * (t2 - 1.0))) / (2.0 * t2)
+    return math.sqrt(x)
+
+
+def _root_of_transmissibility(target: float, zeta: float) -> float:
+    """The verification's own root: T(r, ζ) = target found numerically (Brent's method)."""
+    from scipy.optimize import brentq
+
     lo, hi = SQRT2, 2.0 * SQRT2
     while transmissibility(hi, zeta) > target:
         lo, hi = hi, 2.0 * hi
@@ -388,9 +400,10 @@ class Isolation(CalcType):
                    description="Required static deflection by the undamped handbook form")
         r_req = required_ratio(t_req, zeta)
         s.add(Paragraph(text=(
-            f"With the stated damping ζ = {format_number(zeta, 4)}, T(r, ζ) = T_req is solved"
-            " for r > √2 by Brent's method (scipy.optimize.brentq, tolerance 1e-14), giving"
-            f" r_req = {format_number(r_req, 6)}. Substituting the root back:")))
+            f"With the stated damping ζ = {format_number(zeta, 4)}, T(r, ζ) = T_req is a"
+            " quadratic in x = r²: T²·x² + (4ζ²T² − 2T² − 4ζ²)·x + T² − 1 = 0, whose one"
+            f" positive root gives r_req = {format_number(r_req, 6)} (r > √2)."
+            " Substituting the root back:")))
         s.result("required_frequency_ratio", r_req, "dimensionless", "r_req",
                  "Frequency ratio that just meets the target (stated damping)")
         s.equation("T_req", "sqrt((1 + (2*zeta*r_req)**2)/((1 - r_req**2)**2"
@@ -770,14 +783,11 @@ class Isolation(CalcType):
             quantity="T at the required stiffness", closed_form=t_target,
             independent=base(k_req, c_req, w), tolerance=1e-9,
             method="scipy.signal.freqs with k = n·k_m,req at the running speed"))
-        a = 4.0 * zeta**2
-        bq = t_target**2 * a - 2.0 * t_target**2 - a
-        x = (-bq + math.sqrt(bq**2 - 4.0 * t_target**2 * (t_target**2 - 1.0))) / (
-            2.0 * t_target**2)
         rows.append(VerificationRow(
             quantity="required_frequency_ratio", closed_form=res["required_frequency_ratio"],
-            independent=math.sqrt(x), tolerance=1e-9,
-            method="larger root of T²·x² + (T²·4ζ² − 2T² − 4ζ²)·x + T² − 1 = 0, x = r²"))
+            independent=_root_of_transmissibility(t_target, zeta), tolerance=1e-9,
+            method="scipy.optimize.brentq on T(r, ζ) − T_req for r > √2 (bracket by"
+                   " doubling, tolerance 1e-14)"))
         if zeta > 0:
             wn = math.sqrt(k / m)
             opt = minimize_scalar(lambda v: -base(k, c, v * wn),

@@ -104,6 +104,10 @@ def test_math_font_is_deterministic_unshaped_and_covers_the_equation_glyphs():
 
     chars = set("".join(re.findall(r"<text [^>]*>([^<]*)</text>", svg)))
     assert chars and {ord(c) for c in chars} <= set(font.getBestCmap())
+    # a glyph outside the font's alphabet (a Fraktur g) is drawn as its outline instead
+    svg = latex_svg(r"\mathfrak{g} + x").decode("utf-8")
+    assert re.findall(r"<text [^>]*>([^<]*)</text>", svg) == ["+\U0001d465"]
+    assert svg.count("<use") == 1 and svg.count("<symbol") == 1
 
 
 def _free_job(plugins, tmp_path: Path):

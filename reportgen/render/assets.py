@@ -43,6 +43,7 @@ def _versions() -> str:
     return ",".join(parts)
 
 
+@lru_cache(maxsize=4096)  # blocks are frozen (hashable): equal blocks, equal keys
 def asset_key(block: Equation | Figure, units: str) -> str:
     payload = json.dumps([RENDERER_TAG, _versions(), units, to_json(block)], sort_keys=True,
                          separators=(",", ":"))
@@ -59,6 +60,16 @@ def _render_one(job: tuple[str, Any, str]) -> bytes:
     from .mathsvg import latex_svg
 
     return latex_svg(equation_latex(block, units))
+
+
+#: prefetch's key for the math font job (not a content hash: it cannot clash with one)
+FONT_JOB = "math-font"
+
+
+def _make_font() -> bytes:
+    from .mathsvg import math_font
+
+    return math_font()
 
 
 def _render_many(jobs: list[tuple[str, Any, str]]) -> list[bytes]:
@@ -211,7 +222,10 @@ class PendingAssets:
         self._pool: ProcessPoolExecutor | None = None
         self._own_pool = False
         self._futures: list[tuple[list[str], Future]] = []
+        self._font_future: Future | None = None
         for key, fut in (prefetched or {}).items():
+            if key == FONT_JOB:
+                self._font_future = fut
             if key in todo:  # already being drawn (started before the document existed)
                 del todo[key]
                 self._futures.append(([key], fut))
@@ -283,9 +297,9 @@ class PendingAssets:
         staged = StagedAssets(assets=assets, ready={asset_url(k): v for k, v in
                                                     self.payloads.items()})
         if any(kind == "equation" for kind, _key in self.keys.values()):
-            from .mathsvg import font_face_css, math_font
+            from .mathsvg import font_face_css
 
-            font = math_font()
+            font = self.font()
             url = asset_url(hashlib.sha256(font).hexdigest())
             staged.ready[url] = font
             assets.css = font_face_css(url)
@@ -297,6 +311,18 @@ class PendingAssets:
                                                 else None)
                 staged.jobs[asset_url(key)] = (kind, block, self.units)
         return staged, Drawings(self, pending)
+
+    def font(self) -> bytes:
+        """The math font: from the cache, from a worker that made it, or made here."""
+        from .mathsvg import math_font, math_font_key
+
+        key = math_font_key()
+        font = self.cache.get(key)
+        if font is None:
+            fut = self._font_future
+            font = fut.result() if fut is not None else math_font()
+            self.cache.put(key, font)
+        return font
 
     def _stop_pool(self) -> None:
         if self._own_pool and self._pool is not None:
@@ -312,9 +338,9 @@ class PendingAssets:
         for block, url in staged.assets.items():
             out[block] = data_uri(staged.ready[url])
         if staged.assets.css:
-            from .mathsvg import font_face_css, math_font
+            from .mathsvg import font_face_css
 
-            out.css = font_face_css(data_uri(math_font(), "font/ttf"))
+            out.css = font_face_css(data_uri(self.font(), "font/ttf"))
         return out
 
 
@@ -382,6 +408,11 @@ def prefetch(blocks: Iterable[Any], units: str, *, cache_dir: Path | None, use_c
             continue
         (figs if kind == "figure" else eqs)[key] = (kind, block, units)
     out: dict[str, Future] = {}
+    if eqs:
+        from .mathsvg import math_font_key
+
+        if cache.get(math_font_key()) is None:  # the layout's first need, cheap to make
+            out[FONT_JOB] = pool.submit(_make_font)
     for key, job in eqs.items():  # the layout waits for these
         out[key] = pool.submit(_render_one, job)
     for key, job in figs.items():  # and can start without these

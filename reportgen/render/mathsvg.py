@@ -9,6 +9,7 @@ no Unicode code point (stretched delimiters, radical parts) stay outlines.
 
 from __future__ import annotations
 
+import hashlib
 import io
 import xml.etree.ElementTree as ET
 from functools import lru_cache
@@ -188,31 +189,65 @@ def _char_for(sid: str, cmap) -> str | None:
     except (IndexError, ValueError):
         return None
     # One glyph may serve several code points; any that maps back to it will do, but a
-    # space or control character would be collapsed by the renderer.
+    # space or control character would be collapsed by the renderer, and one outside the
+    # embedded font's alphabet would not be drawn at all (that glyph stays an outline).
     for ch in sorted(cmap.char(gid)):
-        if ch.isprintable() and not ch.isspace() and cmap.glyphid(ch) == gid:
+        if (ch.isprintable() and not ch.isspace() and cmap.glyphid(ch) == gid
+                and in_alphabet(ch)):
             return ch
     return None
 
 
+#: The characters the embedded math font keeps (Unicode blocks): Latin, Latin-1, Greek,
+#: punctuation, letterlike symbols, arrows, operators, technical symbols and the bold and
+#: italic math alphabets. The same font for every package; a glyph outside is an outline.
+MATH_ALPHABET = ((0x20, 0x7E), (0xA0, 0xFF), (0x370, 0x3FF), (0x2000, 0x206F),
+                 (0x2100, 0x214F), (0x2190, 0x21FF), (0x2200, 0x22FF), (0x2300, 0x23FF),
+                 (0x1D400, 0x1D4CF), (0x1D6A8, 0x1D7CB))
+
+
+def in_alphabet(ch: str) -> bool:
+    c = ord(ch)
+    return any(lo <= c <= hi for lo, hi in MATH_ALPHABET)
+
+
+def math_font_key() -> str:
+    """Cache key of :func:`math_font`: the typesetter's version and the alphabet."""
+    from importlib import metadata
+
+    try:
+        version = metadata.version("ziamath")
+    except metadata.PackageNotFoundError:
+        version = "?"
+    return hashlib.sha256(f"mathfont/2\0{version}\0{MATH_ALPHABET}".encode()).hexdigest()
+
+
 @lru_cache(maxsize=1)
 def math_font() -> bytes:
-    """The math font for equation text: ziamath's font without its layout tables.
+    """The embedded math font: ziamath's font cut to :data:`MATH_ALPHABET`, unshaped.
 
     The equations' text places one glyph per position itself, so the renderer must not
     shape it (no substitutions, no kerning): without GSUB, GPOS, GDEF, kern and MATH it
-    draws exactly the glyphs named. The whole character map stays, so the font is the
-    same for every package; the PDF writer embeds only the glyphs a package uses.
+    draws exactly the glyphs named. The same font serves every package (about 190 KB,
+    deterministic: no timestamp is recalculated), so the HTML needs it before any
+    equation is set; the PDF writer embeds only the glyphs a package uses.
     """
     from importlib import resources
 
+    from fontTools import subset
     from fontTools.ttLib import TTFont
 
     path = str(resources.files("ziamath") / "fonts" / "STIXTwoMath-Regular.ttf")
     font = TTFont(path, lazy=True, recalcTimestamp=False)
-    for tag in ("MATH", "GSUB", "GPOS", "GDEF", "kern"):
-        if tag in font:
-            del font[tag]
+    cmap = font.getBestCmap()
+    opts = subset.Options()
+    opts.layout_features = []  # one glyph per text position: nothing to shape
+    opts.drop_tables += ["MATH", "GSUB", "GPOS", "GDEF", "kern"]
+    opts.hinting = False
+    opts.notdef_outline = True
+    sub = subset.Subsetter(opts)
+    sub.populate(unicodes=[c for c in sorted(cmap) if in_alphabet(chr(c))])
+    sub.subset(font)
     buf = io.BytesIO()
     font.save(buf)
     return buf.getvalue()
