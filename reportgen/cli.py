@@ -197,5 +197,21 @@ def default_workers() -> int:
     return max(1, os.cpu_count() or 1)
 
 
+def run() -> None:
+    """The console command: :func:`main`, then leave without the interpreter's teardown.
+
+    Every output is written, synced and renamed and every helper process reaped before
+    ``main`` returns; what is left is freeing the laid-out document, one cyclic garbage
+    collection over millions of objects (~0.7 s for 78 pages). The process ends instead.
+    """
+    code = main()
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):
+            pass
+    os._exit(code)
+
+
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    run()

@@ -268,3 +268,38 @@ def _size_of(images, url, wrong: bool):
     block = next(b for b, u in images.assets.items() if u == url)
     w, h = figure_points(block)
     return (w, h + 36.0) if wrong else (w, h)
+
+
+def test_html_written_beside_the_pdf_is_self_contained_and_lays_out_the_same(tmp_path):
+    # The benchmark's floor lays out this HTML alone: it must be the package's own input.
+    import weasyprint
+
+    from reportgen.cli import main
+    from reportgen.selfcheck import fast_text
+
+    job = REPO / "sample_jobs" / "qep-104-chiller-ch1.toml"
+    assert main(["build", str(job), "--out", str(tmp_path), "--force", "--html",
+                 "--no-cache"]) in (0, 1)
+    html = next(tmp_path.glob("*.html")).read_text(encoding="utf-8")
+    assert "reportgen-asset:" not in html and "data:font/ttf;base64," in html
+    ours = fast_text(next(tmp_path.glob("*.pdf")).read_bytes())
+    alone = fast_text(weasyprint.HTML(string=html).write_pdf(pdf_variant="pdf/a-3b"))
+    assert alone == ours
+
+
+def test_the_command_ends_fast_but_keeps_its_output_and_exit_code(tmp_path):
+    # reportgen.cli.run leaves by os._exit (no teardown): what was printed into a pipe
+    # must still arrive, and the exit code is the build's.
+    import os
+    import subprocess
+    import sys
+
+    env = dict(os.environ, REPORTGEN_CACHE_DIR=str(tmp_path / "cache"))
+    env.pop("PYTHONUNBUFFERED", None)  # a pipe is block-buffered, as in a CI log
+    failing = REPO / "sample_jobs" / "qep-103-pump-p2-force.toml"  # fails on purpose
+    proc = subprocess.run([sys.executable, "-m", "reportgen.cli", "build", str(failing),
+                           "--out", str(tmp_path / "out")], env=env, capture_output=True,
+                          text=True, timeout=300)
+    assert proc.returncode == 1, proc.stderr
+    assert "checks FAIL" in proc.stdout and proc.stdout.rstrip().endswith(".results.json")
+    assert list((tmp_path / "out").glob("*.pdf"))

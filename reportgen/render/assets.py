@@ -179,8 +179,16 @@ def inline_assets(html: str, payloads: dict[str, bytes]) -> str:
     if ASSET_SCHEME not in html:
         return html
     pattern = re.compile(re.escape(ASSET_SCHEME) + r"[0-9a-f]{64}")
-    return pattern.sub(lambda m: data_uri(payloads[m.group(0)])
-                       if m.group(0) in payloads else m.group(0), html)
+
+    def inline(m: re.Match) -> str:
+        payload = payloads.get(m.group(0))
+        if payload is None:
+            return m.group(0)
+        # the drawings are SVG; the one other asset is the math font (TrueType)
+        return data_uri(payload, "image/svg+xml" if payload.lstrip()[:1] == b"<"
+                        else "font/ttf")
+
+    return pattern.sub(inline, html)
 
 
 def iter_asset_blocks(doc: Document) -> Iterable[tuple[str, Equation | Figure]]:
