@@ -6,7 +6,6 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
 import sys
 from collections.abc import Callable, Iterable
 from concurrent.futures import ProcessPoolExecutor, as_completed
@@ -89,15 +88,9 @@ def _leave_fast() -> None:
     (~0.6 s measured) while the set waits for its workers."""
     import atexit
 
-    def leave() -> None:
-        for stream in (sys.stdout, sys.stderr):
-            try:
-                stream.flush()
-            except (OSError, ValueError):
-                pass
-        os._exit(0)
+    from .cli import leave_now
 
-    atexit.register(leave)  # runs first: atexit handlers run last-registered first
+    atexit.register(leave_now, 0)  # runs first: atexit handlers run last-registered first
 
 
 class Progress:

@@ -204,7 +204,11 @@ def run() -> None:
     ``main`` returns; what is left is freeing the laid-out document, one cyclic garbage
     collection over millions of objects (~0.7 s for 78 pages). The process ends instead.
     """
-    code = main()
+    leave_now(main())
+
+
+def leave_now(code: int) -> None:
+    """Flush what was printed (a pipe is block-buffered) and end the process at once."""
     for stream in (sys.stdout, sys.stderr):
         try:
             stream.flush()

@@ -168,48 +168,12 @@ def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
         from .render.assets import warm_pool
 
         pool = warm_pool(opts.workers)  # drawing workers load the typesetter meanwhile
-    try:
-        prep, rest = _prepare(job, plugins, opts, preload, pool, later)
+    try:  # the drawings stop the pool at their end (render.assets.Drawings)
+        return _prepare(job, plugins, opts, preload, pool, later)
     except BaseException:
-        _stop(pool)
+        if pool is not None:  # wait: a worker left behind would outlive the build
+            pool.shutdown(wait=True, cancel_futures=True)
         raise
-    return prep, _Later(rest, pool)
-
-
-def _stop(pool) -> None:
-    if pool is not None:  # wait: a worker left behind would outlive the build
-        pool.shutdown(wait=True, cancel_futures=True)
-
-
-class _Later:
-    """The drawings still to come, then the workers stopped: on exhaustion, on error,
-    or on ``close()`` even if nothing was taken (a worker left would outlive the build).
-    """
-
-    def __init__(self, rest, pool):
-        self._rest, self._pool, self._started = rest, pool, False
-
-    def __iter__(self) -> _Later:
-        return self
-
-    def __next__(self):
-        if not self._started:
-            from .render.assets import lower_priority
-
-            self._started = True
-            lower_priority(self._pool)  # the layout has started: it comes first now
-        try:
-            return next(self._rest)
-        except BaseException:
-            self.close()
-            raise
-
-    def close(self) -> None:
-        close = getattr(self._rest, "close", None)
-        if close is not None:
-            close()
-        _stop(self._pool)
-        self._pool = None
 
 
 def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, pool,

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import io
 import re
+from collections.abc import Iterator
+from typing import Any
 
 from .errors import RenderError
 from .model import Document
@@ -97,23 +99,23 @@ _HEX_STRING = re.compile(rb"<([0-9a-fA-F\s]*)>")
 _GAP = re.compile(rb"-(\d+\.?\d*|\.\d+)")
 
 
-def _tj_text(array: bytes, cmap) -> str:
-    """A TJ array's text: its strings decoded together, a space for each gap of more
-    than a quarter em (a kerning or spacing adjustment below that is not a space)."""
-    out = []
+def _tj_segments(array: bytes) -> list[bytes | None]:
+    """A TJ array's strings, joined between spaces (None): a gap of more than a quarter
+    em reads as a space; a smaller kerning or spacing adjustment does not."""
+    out: list[bytes | None] = []
     start = 0
     for m in _GAP.finditer(array):  # only gaps are negative: hex strings have no sign
         if float(m.group(1)) > 250:
-            out.append(_hex_text(array[start:m.start()], cmap))
-            out.append(" ")
+            out += [_hex_bytes(array[start:m.start()]), None]
             start = m.end()
-    out.append(_hex_text(array[start:], cmap))
-    return "".join(out)
+    out.append(_hex_bytes(array[start:]))
+    return out
 
 
-def _hex_text(segment: bytes, cmap) -> str:
-    digits = b"".join(_HEX_STRING.findall(segment))
-    return _decode(bytes.fromhex(digits.decode("ascii")), cmap) if digits else ""
+def _hex_bytes(segment: bytes) -> bytes:
+    return bytes.fromhex(b"".join(_HEX_STRING.findall(segment)).decode("ascii"))
+
+
 _INLINE_IMAGE = re.compile(rb"(?<![A-Za-z])BI(?![A-Za-z])")
 
 
@@ -134,69 +136,70 @@ def _content_bytes(obj) -> bytes:
     return b"\n".join(c.read_bytes() for c in parts)
 
 
-def _stream_text(obj, resources, maps: dict, seen: set) -> list[str]:
-    data = _content_bytes(obj)
-    if not _plain(data):
-        return _stream_text_parsed(obj, resources, maps, seen)
+def _pattern_ops(data: bytes) -> Iterator[tuple[str, Any]]:
+    """("font", name), ("text", segments) and ("form", name), read by pattern."""
+    for m in _OPS.finditer(data):
+        font_name, array, hex_text, xo_name = m.groups()
+        if font_name is not None:
+            yield "font", "/" + font_name.decode("latin-1")
+        elif array is not None:
+            yield "text", _tj_segments(array)
+        elif hex_text is not None:
+            yield "text", [_hex_bytes(b"<" + hex_text + b">")]
+        else:
+            yield "form", "/" + xo_name.decode("latin-1")
+
+
+def _parsed_ops(obj) -> Iterator[tuple[str, Any]]:
+    """The same operations by pikepdf's content-stream parser (any content stream)."""
+    import pikepdf
+
+    for operands, op in pikepdf.parse_content_stream(obj, "Tf Tj TJ ' \" Do"):  # type: ignore[misc]
+        name = str(op)
+        if name == "Tf":
+            yield "font", str(operands[0])
+        elif name in ("Tj", "'", '"'):
+            yield "text", [bytes(operands[-1])]
+        elif name == "TJ":
+            segments: list[bytes | None] = []
+            run = b""
+            for item in operands[0]:
+                if isinstance(item, pikepdf.String):
+                    run += bytes(item)
+                elif float(item) < -250:
+                    segments += [run, None]
+                    run = b""
+            yield "text", segments + [run]
+        elif name == "Do":
+            yield "form", str(operands[0])
+
+
+def _stream_text(obj, resources, maps: dict, seen: set, parse: bool = False) -> list[str]:
+    """The text runs a page or form shows, forms drawn from it included. The renderer's
+    own plain streams are read by pattern; anything else (or ``parse``) by pikepdf."""
+    data = b"" if parse else _content_bytes(obj)
+    ops = _parsed_ops(obj) if parse or not _plain(data) else _pattern_ops(data)
     fonts = resources.get("/Font", {}) if resources is not None else {}
     xobjects = resources.get("/XObject", {}) if resources is not None else {}
     current = None
     runs: list[str] = []
-    for m in _OPS.finditer(data):
-        font_name, array, hex_text, xo_name = m.groups()
-        if font_name is not None:
-            font = fonts.get("/" + font_name.decode("latin-1"))
+    for kind, value in ops:
+        if kind == "font":
+            font = fonts.get(value)
             if font is None:
                 current = None
                 continue
             if font.objgen not in maps:  # fonts are shared by pages: parse each CMap once
                 maps[font.objgen] = _fast_map(_to_unicode_map(font))
             current = maps[font.objgen]
-        elif array is not None:
-            runs.append(_tj_text(array, current))
-        elif hex_text is not None:
-            runs.append(_decode(bytes.fromhex(hex_text.decode("ascii")), current))
+        elif kind == "text":
+            runs.append("".join(" " if seg is None else _decode(seg, current)
+                                for seg in value))
         else:
-            xo = xobjects.get("/" + xo_name.decode("latin-1"))
+            xo = xobjects.get(value)
             if xo is not None and xo.get("/Subtype") == "/Form" and xo.objgen not in seen:
                 seen.add(xo.objgen)
-                runs += _stream_text(xo, xo.get("/Resources", resources), maps, seen)
-    return runs
-
-
-def _stream_text_parsed(obj, resources, maps: dict, seen: set) -> list[str]:
-    """The same as :func:`_stream_text`, by pikepdf's content-stream parser."""
-    import pikepdf
-
-    fonts = resources.get("/Font", {}) if resources is not None else {}
-    xobjects = resources.get("/XObject", {}) if resources is not None else {}
-    current = None
-    runs: list[str] = []
-    for operands, op in pikepdf.parse_content_stream(obj, "Tf Tj TJ ' \" Do"):  # type: ignore[misc]
-        name = str(op)
-        if name == "Tf":
-            font = fonts.get(str(operands[0]))
-            if font is None:
-                current = None
-                continue
-            if font.objgen not in maps:
-                maps[font.objgen] = _fast_map(_to_unicode_map(font))
-            current = maps[font.objgen]
-        elif name in ("Tj", "'", '"'):
-            runs.append(_decode(bytes(operands[-1]), current))
-        elif name == "TJ":
-            parts = []
-            for item in operands[0]:
-                if isinstance(item, pikepdf.String):
-                    parts.append(_decode(bytes(item), current))
-                elif float(item) < -250:
-                    parts.append(" ")
-            runs.append("".join(parts))
-        elif name == "Do":
-            xo = xobjects.get(str(operands[0]))
-            if xo is not None and xo.get("/Subtype") == "/Form" and xo.objgen not in seen:
-                seen.add(xo.objgen)
-                runs += _stream_text(xo, xo.get("/Resources", resources), maps, seen)
+                runs += _stream_text(xo, xo.get("/Resources", resources), maps, seen, parse)
     return runs
 
 

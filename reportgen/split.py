@@ -234,13 +234,6 @@ def run_split_stream(work: Callable[[], tuple[Any, Iterable[tuple[Any, Any]]]],
     return first, _LocalLater(items)
 
 
-def run_split(work: Callable[[], Any], meanwhile: Callable[[], None]) -> Any:
-    """Return ``work()`` computed in a forked child; run ``meanwhile()`` here meanwhile."""
-    first, later = run_split_stream(lambda: (work(), ()), meanwhile)
-    later.close()
-    return first
-
-
 def local_later(items: Iterable[tuple[Any, Any]]) -> Later:
     """A :class:`Later` over items made in this process, pulled as they are asked for."""
     return _LocalLater(items)

@@ -195,8 +195,9 @@ def test_self_check_pattern_reader_matches_the_content_parser(tmp_path):
     with pikepdf.open(io.BytesIO(pdf)) as p:
         assert len(p.pages) >= 4
         maps: dict = {}
-        parsed = [selfcheck._norm(" ".join(selfcheck._stream_text_parsed(
-            page.obj, page.obj.get("/Resources"), maps, set()))) for page in p.pages]
+        parsed = [selfcheck._norm(" ".join(selfcheck._stream_text(
+            page.obj, page.obj.get("/Resources"), maps, set(), parse=True)))
+            for page in p.pages]
         assert selfcheck._pages_text(p) == parsed
     # a stream the pattern reader does not know (a literal string) goes to the parser
     assert not selfcheck._plain(b"BT /F1 12 Tf (Hello) Tj ET")

@@ -22,7 +22,7 @@ from ..cache import default_cache_dir
 from ..model import Document, Equation, Figure, to_json
 from .figures import figure_points
 from .html import data_uri
-from .pdf import ASSET_SCHEME
+from .pdf import ASSET_SCHEME, asset_mime
 
 #: Bump when the drawing code changes, so cached assets of the old look are not reused.
 RENDERER_TAG = "assets/4"
@@ -184,9 +184,7 @@ def inline_assets(html: str, payloads: dict[str, bytes]) -> str:
         payload = payloads.get(m.group(0))
         if payload is None:
             return m.group(0)
-        # the drawings are SVG; the one other asset is the math font (TrueType)
-        return data_uri(payload, "image/svg+xml" if payload.lstrip()[:1] == b"<"
-                        else "font/ttf")
+        return data_uri(payload, asset_mime(payload))
 
     return pattern.sub(inline, html)
 
@@ -228,7 +226,6 @@ class PendingAssets:
             else:
                 todo[key] = (kind, block)
         self._pool: ProcessPoolExecutor | None = None
-        self._own_pool = False
         self._futures: list[tuple[list[str], Future]] = []
         self._font_future: Future | None = None
         for key, fut in (prefetched or {}).items():
@@ -260,7 +257,6 @@ class PendingAssets:
         # Fork: workers inherit the loaded modules.
         ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
         n = workers if pool is not None else min(workers, len(jobs))
-        self._own_pool = pool is None
         self._pool = pool or ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         chunks: list[list[tuple[str, Any]]] = []
         figs = [j for j in jobs if j[1][0] == "figure"]
@@ -277,10 +273,10 @@ class PendingAssets:
 
         Unless ``later``, every image is waited for first and the iterator is empty.
         With ``later``, the images still being drawn are left to the iterator, which
-        yields (URL, SVG) as each is drawn (in any order), stores it in the cache and, at
-        its end, stops a pool this object started. A figure's size is known before it is
-        drawn; an equation's is not, so the layout waits for an equation when it reaches
-        it, and for a figure only when it paints it.
+        yields (URL, SVG) as each is drawn (in any order) and stores it in the cache. Its
+        end (or ``close()``) stops the drawing pool, its own or the one it was given.
+        A figure's size is known before it is drawn; an equation's is not, so the layout
+        waits for an equation when it reaches it, and for a figure only when it paints it.
         """
         fresh: dict[str, bytes] = {}
         pending: list[tuple[list[str], Future]] = []
@@ -333,7 +329,7 @@ class PendingAssets:
         return font
 
     def _stop_pool(self) -> None:
-        if self._own_pool and self._pool is not None:
+        if self._pool is not None:  # wait: a worker left behind would outlive the build
             self._pool.shutdown(wait=True, cancel_futures=True)
         self._pool = None
 
@@ -354,8 +350,9 @@ class PendingAssets:
 
 class Drawings:
     """The images still being drawn, as (URL, SVG) in the order they are done; each is
-    stored in the cache as it comes. ``close()`` (or the end) stops the pool the assets
-    started, whether or not anything was taken."""
+    stored in the cache as it comes. Taking the first lowers the workers' priority (the
+    layout has started and comes first); the end, an error or ``close()`` stops the
+    pool, whether or not anything was taken."""
 
     def __init__(self, owner: PendingAssets, pending: list[tuple[list[str], Future]]):
         self._owner = owner
@@ -367,6 +364,8 @@ class Drawings:
 
     def __next__(self) -> tuple[str, bytes]:
         if self._it is None:
+            if self._pending:
+                lower_priority(self._owner._pool)
             self._it = self._each()
         try:
             return next(self._it)
@@ -395,7 +394,8 @@ class Drawings:
 def start_assets(doc: Document, *, cache_dir: Path | None = None, use_cache: bool = True,
                  workers: int = 1, pool: ProcessPoolExecutor | None = None,
                  prefetched: dict[str, Future] | None = None) -> PendingAssets:
-    """Look assets up in the cache and start drawing the rest (in ``pool`` if given)."""
+    """Look assets up in the cache and start drawing the rest (in ``pool`` if given,
+    which the assets then stop when their drawings are done)."""
     cache = AssetCache((cache_dir or default_cache_dir()) if use_cache else None)
     return PendingAssets(doc, cache, workers, pool, prefetched)
 

@@ -31,6 +31,11 @@ PDF_VARIANT = "pdf/a-3b"
 ASSET_SCHEME = "reportgen-asset:"
 
 
+def asset_mime(payload: bytes) -> str:
+    """The drawings are SVG; the one other asset is the math font (TrueType)."""
+    return "image/svg+xml" if payload.lstrip()[:1] == b"<" else "font/ttf"
+
+
 @dataclass(frozen=True, slots=True)
 class EmbeddedFile:
     name: str
@@ -60,7 +65,8 @@ def _fetcher_class():
             if url.startswith(ASSET_SCHEME) and self.assets is not None:
                 payload = self.assets(url)
                 if payload is not None:
-                    return URLFetcherResponse(url, payload, {"Content-Type": "image/svg+xml"})
+                    return URLFetcherResponse(url, payload,
+                                              {"Content-Type": asset_mime(payload)})
             if scheme == "data":
                 return super().fetch(url, headers)
             if scheme == "file":
