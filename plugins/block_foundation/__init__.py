@@ -1,0 +1,1 @@
+"""block_foundation: rotating-machine foundations on soil (in progress)."""

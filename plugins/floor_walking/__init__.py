@@ -1,0 +1,1 @@
+"""floor_walking: floors and footbridges under footfall (in progress)."""

@@ -1,0 +1,1 @@
+"""measured_vibration: site surveys and monitoring records (in progress)."""

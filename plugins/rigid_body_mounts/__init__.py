@@ -1,0 +1,1 @@
+"""rigid_body_mounts: equipment on resilient mounts in six degrees of freedom (in progress)."""

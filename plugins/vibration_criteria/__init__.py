@@ -1,0 +1,1 @@
+"""vibration_criteria: the library of published vibration criteria (in progress)."""
