@@ -191,6 +191,29 @@ def embedded_of(path: Path) -> dict[str, bytes]:
                                   f" {exc}")) from None
 
 
+def page_attachments(pdf: Any) -> list[str]:
+    """Files attached to pages of an open ``pikepdf.Pdf`` (annotations), as "NAME (page N)".
+
+    They are embedded files too, outside the document's list of attachments; a package
+    of this tool has none.
+    """
+    found = []
+    for number, page in enumerate(pdf.pages, start=1):
+        for annot in page.obj.get("/Annots", ()):
+            if annot.get("/Subtype") == "/FileAttachment":
+                spec = annot.get("/FS", {})
+                name = spec.get("/UF", spec.get("/F", "?")) if hasattr(spec, "get") else "?"
+                found.append(f"{name} (page {number})")
+    return found
+
+
+def _page_attachments_of(path: Path) -> list[str]:
+    import pikepdf
+
+    with pikepdf.open(path) as pdf:
+        return page_attachments(pdf)
+
+
 def open_package(path: Path | str) -> Package:
     """Read a package's embedded files and check them against its manifest.
 
@@ -237,6 +260,8 @@ def open_package(path: Path | str) -> Package:
                             f" {sha256(files[name])[:12]}…, manifest {digest[:12] or 'none'}…)")
     for name in sorted(set(files) - set(expected) - {MANIFEST_NAME}):
         problems.append(f"embedded file {name!r} is not listed in the manifest")
+    for name in _page_attachments_of(path):
+        problems.append(f"file {name} is attached to a page and not listed in the manifest")
     if problems:
         raise AlteredPackage(Problem(where, "embedded files were altered after the build: "
                                      + "; ".join(problems)))

@@ -2,6 +2,7 @@
 
     ReportgenError
      ├── JobError          invalid job file or usage (exit 2); carries every Problem found
+     │    └── ThemeError      a firm theme's file is refused or its template fails (exit 2)
      ├── PluginError       a plugin failed to load, compute or verify (exit 3; 2 at load)
      │    └── VerificationError   two independent methods disagree (exit 3)
      └── RenderError       the HTML/PDF step or the self-check of the written PDF failed (exit 3)
@@ -56,6 +57,10 @@ class JobError(ReportgenError):
             problems = [problems]
         self.problems = list(problems)
         super().__init__("\n".join(str(p).lstrip(": ") for p in self.problems))
+
+
+class ThemeError(JobError):
+    """A file of a firm's theme folder is refused, or a theme template fails (exit 2)."""
 
 
 class PluginError(ReportgenError):

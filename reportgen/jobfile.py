@@ -21,6 +21,7 @@ from .calc import InputSpec
 from .errors import JobError, Problem
 from .model import PackageInfo, RevisionEntry
 from .plugins import PluginSet
+from .safepath import Kind, job_relative_path, path_parts, read_job_file
 from .units import DIMENSIONS, UnitProblem, parse_quantity
 
 MAX_JOB_BYTES = 1_000_000
@@ -353,10 +354,8 @@ class _Validator:
                 self.add("expected a path to the previous revision's PDF",
                          field="package.previous_package")
             else:
-                previous = (path.parent / p)
-                if not previous.is_file():
-                    self.add(f"previous package '{p}' not found beside the job file",
-                             field="package.previous_package")
+                previous = self._named(path, p, "package.previous_package", "file",
+                                       "previous package")
         info = PackageInfo(
             title=t["title"], job_number=t["job_number"], calc_number=t["calc_number"],
             revision=t["revision"], date=date, client=t["client"], project=t["project"],
@@ -375,57 +374,42 @@ class _Validator:
         if len(listed) > MAX_ATTACHMENTS:
             self.add(f"{len(listed)} attachments; the limit is {MAX_ATTACHMENTS}", field=fld)
             return ()
-        root = path.parent.resolve()
         out: list[JobAttachment] = []
         names: dict[str, str] = {}
         total = 0
         for i, rel in enumerate(listed):
             where = f"{fld}[{i}]"
-            parts = rel.replace("\\", "/").split("/")
-            if (not rel.strip() or "\0" in rel or rel.startswith(("/", "\\")) or ":" in rel
-                    or any(p in ("", ".", "..") for p in parts)):
-                self.add(f"{rel!r} must be a relative path to a file inside the job's folder"
-                         " (no '..', no absolute path)", field=where)
+            try:
+                data = read_job_file(path.parent, rel, where, limit=MAX_ATTACHMENT_BYTES,
+                                     file=self.fname, what="attachment")
+            except JobError as exc:
+                self.problems.extend(exc.problems)
                 continue
+            parts = path_parts(rel)
             name = parts[-1]
             if name in RESERVED_NAMES or name in names:
                 other = "the package's own file" if name in RESERVED_NAMES else repr(names[name])
                 self.add(f"{rel!r} would be embedded as '{name}', which {other} already uses;"
                          " rename the file", field=where)
                 continue
-            target = path.parent.joinpath(*parts)
-            # refuse symlinks anywhere on the way: the package must hold what the folder holds
-            chain = [path.parent.joinpath(*parts[:n]) for n in range(1, len(parts) + 1)]
-            if any(c.is_symlink() for c in chain):
-                self.add(f"{rel!r} is a symbolic link (or lies under one); attach the file"
-                         " itself", field=where)
-                continue
-            try:
-                real = target.resolve(strict=True)
-                st = real.stat()
-            except OSError:
-                self.add(f"attachment {rel!r} not found beside the job file", field=where)
-                continue
-            if not real.is_relative_to(root) or not real.is_file():
-                self.add(f"{rel!r} is not a regular file inside the job's folder", field=where)
-                continue
-            if st.st_size > MAX_ATTACHMENT_BYTES:
-                self.add(f"{rel!r} is {st.st_size} bytes; the limit for one attachment is"
-                         f" {MAX_ATTACHMENT_BYTES} bytes", field=where)
-                continue
-            total += st.st_size
+            total += len(data)
             if total > MAX_ATTACHMENTS_TOTAL:
                 self.add(f"attachments total more than {MAX_ATTACHMENTS_TOTAL} bytes",
                          field=where)
                 break
-            try:
-                data = real.read_bytes()
-            except OSError as exc:
-                self.add(f"cannot read attachment {rel!r}: {exc.strerror}", field=where)
-                continue
             names[name] = rel
             out.append(JobAttachment(path="/".join(parts), name=name, data=data))
         return tuple(out)
+
+    def _named(self, path: Path, text: str, field: str, kind: Kind,
+               what: str = "") -> Path | None:
+        """``text`` by the one safe-path rule (reportgen.safepath); None and a problem if not."""
+        try:
+            return job_relative_path(path.parent, text, field, kind=kind, file=self.fname,
+                                     what=what)
+        except JobError as exc:
+            self.problems.extend(exc.problems)
+            return None
 
     def _folder(self, pkg: Mapping[str, Any], key: str, path: Path) -> Path | None:
         value = pkg.get(key)
@@ -434,11 +418,7 @@ class _Validator:
         if not isinstance(value, str) or not value.strip():
             self.add("expected a folder path relative to the job file", field=f"package.{key}")
             return None
-        folder = (path.parent / value).resolve()
-        if not folder.is_dir():
-            self.add(f"folder '{value}' not found beside the job file", field=f"package.{key}")
-            return None
-        return folder
+        return self._named(path, value, f"package.{key}", "folder")
 
     # ------------------------------------------------------------ calcs
 

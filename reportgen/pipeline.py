@@ -129,7 +129,7 @@ def package_pdf(prep: Prepared, later: Later | None = None) -> tuple[bytes, dict
     Figures still being drawn come through ``later`` when the renderer paints them; one
     that does not come (its worker failed) is drawn here.
     """
-    from .render.pdf import write_pdf
+    from .render.pdf import RefusedResource, write_pdf
 
     images = prep.images
     got: dict[str, bytes] = {}
@@ -140,9 +140,19 @@ def package_pdf(prep: Prepared, later: Later | None = None) -> tuple[bytes, dict
             got[url] = payload if payload is not None else images.draw_here(url)
         return got[url]
 
-    pdf = write_pdf(prep.html, base_dir=prep.job.folder, attachments=prep.files,
-                    date=prep.job.info.date, extra_roots=prep.roots, images=images.ready,
-                    later=images.later, get_later=get_later)
+    try:
+        pdf = write_pdf(prep.html, base_dir=prep.job.folder, attachments=prep.files,
+                        date=prep.job.info.date, extra_roots=prep.roots, images=images.ready,
+                        later=images.later, get_later=get_later)
+    except RefusedResource as exc:
+        if not prep.roots:  # the built-in templates ask for nothing of the kind
+            raise
+        # only a firm theme's templates can ask for a file or an embedding (job text is
+        # escaped): the theme is at fault
+        from .errors import ThemeError
+
+        raise ThemeError(Problem(str(prep.roots[0]), f"a template of this theme: {exc}")
+                         ) from exc
     payloads = dict(images.ready)
     payloads.update((url, get_later(url)) for url in images.later)
     return pdf, payloads
@@ -228,7 +238,7 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
     if opts.self_check:
         from .selfcheck import self_check
 
-        self_check(pdf, doc)
+        self_check(pdf, doc, embedded=[f.name for f in prep.files])
     outputs = [(results_path, prep.results), (pdf_path, pdf)]
     html_path = None
     if opts.html:

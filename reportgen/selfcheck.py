@@ -2,14 +2,15 @@
 
 Page count against "Page X of Y", every section title, every check status and every
 key result as displayed must be in the extracted text; fonts must be embedded; the
-file must open cleanly. Any failure is a RenderError (exit 3, nothing written).
+embedded files must be exactly the manifest's; the file must open cleanly. Any failure
+is a RenderError (exit 3, nothing written).
 """
 
 from __future__ import annotations
 
 import io
 import re
-from collections.abc import Iterator
+from collections.abc import Iterable, Iterator
 from typing import Any
 
 from .errors import RenderError
@@ -227,7 +228,12 @@ def _squash(text: str) -> str:
     return re.sub(r"\s+", "", text.replace("\u00ad", ""))
 
 
-def self_check(pdf: bytes, doc: Document) -> None:
+def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None) -> None:
+    """Raise RenderError unless ``pdf`` says what ``doc`` says (see the module docstring).
+
+    ``embedded``: the names of the files the package must embed (its manifest's list);
+    the PDF must embed exactly those, and attach none to a page.
+    """
     import pikepdf
 
     problems: list[str] = []
@@ -236,6 +242,8 @@ def self_check(pdf: bytes, doc: Document) -> None:
             problems += _syntax_problems(p)
             pages = _pages_text(p)
             problems += _font_problems(p)
+            if embedded is not None:
+                problems += _embedded_problems(p, sorted(embedded))
     except Exception as exc:
         raise RenderError(f"self-check: the written PDF cannot be read back: {exc}") from None
     n_pages = len(pages)
@@ -257,6 +265,16 @@ def self_check(pdf: bytes, doc: Document) -> None:
             problems.append(f"check status {status.upper()} is missing from the text")
     if problems:
         raise RenderError("self-check of the written PDF failed: " + "; ".join(problems))
+
+
+def _embedded_problems(p, expected: list[str]) -> list[str]:
+    from .archive import page_attachments
+
+    names = sorted(str(n) for n in p.attachments)
+    out = [f"file {n} is attached to a page" for n in page_attachments(p)]
+    if names != expected:
+        out.append(f"the PDF embeds {names}, the manifest lists {expected}")
+    return out
 
 
 def _syntax_problems(p) -> list[str]:

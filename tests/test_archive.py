@@ -56,7 +56,11 @@ def _with_package_keys(source: str, extra: str) -> str:
 
 @pytest.fixture(scope="module")
 def work(tmp_path_factory) -> Path:
-    """jobs/p1.toml = sample revision B + previous package + an attachment; a/ = revision A."""
+    """jobs/p1.toml = sample revision B + previous package + an attachment; a/ = revision A.
+
+    Revision A's package is built into jobs/prev/: a job may only name files inside its
+    own folder (previous_package follows the one safe-path rule).
+    """
     root = tmp_path_factory.mktemp("archive")
     (root / "a").mkdir()
     shutil.copy(SAMPLE_A, root / "a" / SAMPLE_A.name)
@@ -64,7 +68,7 @@ def work(tmp_path_factory) -> Path:
     (jobs / "survey").mkdir(parents=True)
     (jobs / "survey" / "p1-readings.csv").write_bytes(SURVEY)
     text = _with_package_keys(SAMPLE_B.read_text(encoding="utf-8"),
-                              'previous_package = "../a/QEP-2417-V-101-A.pdf"\n'
+                              'previous_package = "prev/QEP-2417-V-101-A.pdf"\n'
                               'attachments = ["survey/p1-readings.csv"]')
     (jobs / "p1.toml").write_bytes(text.encode("utf-8"))
     return root
@@ -75,7 +79,7 @@ def rev_a(work: Path) -> Path:
     from reportgen.pipeline import BuildOptions, build_job
 
     result = build_job(work / "a" / SAMPLE_A.name, load_plugins(),
-                       BuildOptions(out_dir=work / "a", cache_dir=work / "cache-a",
+                       BuildOptions(out_dir=work / "jobs" / "prev", cache_dir=work / "cache-a",
                                     workers=1))
     assert result.exit_code == 0
     return result.pdf

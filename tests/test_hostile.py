@@ -20,7 +20,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from reportgen.cli import main
-from reportgen.errors import JobError, RenderError
+from reportgen.errors import JobError, RenderError, ThemeError
 from reportgen.jobfile import load_job
 from reportgen.plugins import get_plugin_manager
 
@@ -258,7 +258,7 @@ def test_svg_logo_that_reads_a_file_is_refused(tmp_path, capsys):
     (firm / "logo.svg").write_text(
         '<svg xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink">'
         '<image href="file:///etc/passwd" width="10" height="10"/></svg>')
-    with pytest.raises(RenderError, match="logo"):
+    with pytest.raises(ThemeError, match="logo"):
         firm_logo(firm)
 
 
@@ -276,7 +276,7 @@ def test_svg_logo_variants_are_refused(svg, tmp_path):
     from reportgen.templates import firm_logo
 
     (tmp_path / "logo.svg").write_text(svg)
-    with pytest.raises(RenderError):
+    with pytest.raises(ThemeError):
         firm_logo(tmp_path)
 
 
@@ -303,7 +303,7 @@ def test_build_with_hostile_logo_fails_and_writes_nothing(tmp_path, no_network, 
     out = tmp_path / "out"
     code = main(["build", str(path), "--out", str(out), "--template-dir", str(firm)])
     err = capsys.readouterr().err
-    assert code == 3, err
+    assert code == 2, err
     assert "logo" in err and "Traceback" not in err
     assert not out.exists() or not any(out.iterdir())
 

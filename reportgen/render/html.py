@@ -69,14 +69,19 @@ def readable_number(text: str) -> str:
 def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
              extra_hook: Any = None):
     import jinja2
+    from jinja2.sandbox import ImmutableSandboxedEnvironment
+
+    from .theme import ThemeLoader
 
     loaders: list[jinja2.BaseLoader] = []
     if template_dir is not None:
-        loaders.append(jinja2.FileSystemLoader(str(template_dir)))
+        loaders.append(ThemeLoader(template_dir))
     loaders.append(jinja2.FileSystemLoader(str(builtin_templates())))
-    env = jinja2.Environment(loader=jinja2.ChoiceLoader(loaders), autoescape=True,
-                             undefined=jinja2.StrictUndefined, trim_blocks=True,
-                             lstrip_blocks=True)
+    # Sandboxed: a theme comes with a job file from anyone, and a template must not reach
+    # the interpreter (cycler.__init__.__globals__ and the like) or alter what it is given.
+    env = ImmutableSandboxedEnvironment(loader=jinja2.ChoiceLoader(loaders), autoescape=True,
+                                        undefined=jinja2.StrictUndefined, trim_blocks=True,
+                                        lstrip_blocks=True)
 
     def qv(q: Quantity | None, digits: int = 4) -> str:
         return quantity_parts(q, units, digits)[0]
@@ -122,11 +127,19 @@ def data_uri(payload: bytes, mime: str = "image/svg+xml") -> str:
 
 def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path | None = None,
                 logo: str | None = None, extra_hook: Any = None) -> str:
+    import jinja2
+
+    from ..errors import ThemeError
+    from .theme import template_failure
+
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
-    template = env.get_template("package.html")
-    html = template.render(doc=doc, info=doc.info, logo=logo,
-                           watermark=watermark_uri(doc.review_state),
-                           watermark_text=WATERMARKS.get(doc.review_state, ""))
+    try:
+        template = env.get_template("package.html")
+        html = template.render(doc=doc, info=doc.info, logo=logo,
+                               watermark=watermark_uri(doc.review_state),
+                               watermark_text=WATERMARKS.get(doc.review_state, ""))
+    except (jinja2.TemplateError, ThemeError) as exc:
+        raise template_failure(exc, template_dir, builtin_templates()) from exc
     css = getattr(assets, "css", "")  # the equations' math font (render.assets.Assets)
     if css:
         at = html.find("</head>")

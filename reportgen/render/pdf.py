@@ -27,6 +27,8 @@ from urllib.parse import unquote, urlparse
 from ..errors import RenderError
 
 PDF_VARIANT = "pdf/a-3b"
+#: the most the renderer reads of one file from the job's or the theme's folder
+FETCH_LIMIT = 10_000_000
 #: URL scheme of the package's figures and equations in the HTML handed to the renderer
 ASSET_SCHEME = "reportgen-asset:"
 
@@ -34,6 +36,10 @@ ASSET_SCHEME = "reportgen-asset:"
 def asset_mime(payload: bytes) -> str:
     """The drawings are SVG; the one other asset is the math font (TrueType)."""
     return "image/svg+xml" if payload.lstrip()[:1] == b"<" else "font/ttf"
+
+
+class RefusedResource(RenderError):
+    """The HTML asks for a file or URL a package may not use, or asks to embed a file."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -47,6 +53,8 @@ class EmbeddedFile:
 
 def _fetcher_class():
     from weasyprint.urls import FatalURLFetchingError, URLFetcher, URLFetcherResponse
+
+    from ..safepath import TooLarge, UnsafePath, open_inside, read_fd
 
     class JobFolderFetcher(URLFetcher):
         """Serve data: URIs and regular files under the job folder; refuse the rest."""
@@ -69,19 +77,23 @@ def _fetcher_class():
                                               {"Content-Type": asset_mime(payload)})
             if scheme == "data":
                 return super().fetch(url, headers)
+            why = ("a package may only use its generated figures and files inside the"
+                   " job's own folder")
             if scheme == "file":
                 path = Path(unquote(urlparse(url).path))
-                try:
-                    real = path.resolve(strict=True)
-                except OSError:
-                    real = None
-                if real is not None and real.is_file() and any(
-                        real.is_relative_to(r) for r in self.roots):
-                    return URLFetcherResponse(url, real.read_bytes(), {})
+                for root in (r for r in self.roots if path.is_relative_to(r)):
+                    # the one safe-path rule: no link, no '..', a regular file, bounded
+                    try:
+                        fd = open_inside(root, path.relative_to(root).parts)
+                        data = read_fd(fd, FETCH_LIMIT)
+                    except TooLarge as exc:
+                        why = f"the file holds {exc.size} bytes; the limit is {exc.limit}"
+                        break
+                    except (UnsafePath, OSError):
+                        break
+                    return URLFetcherResponse(url, data, {})
             self.refused.append(url)
-            raise FatalURLFetchingError(
-                f"refused to fetch {url!r}: a package may only use its generated figures"
-                " and files inside the job's own folder")
+            raise FatalURLFetchingError(f"refused to fetch {url!r}: {why}")
 
     return JobFolderFetcher
 
@@ -229,15 +241,35 @@ def _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
                 for a in attachments]
         base_url = (base_dir.resolve().as_uri() + "/") if base_dir else None
         doc = weasyprint.HTML(string=html, base_url=base_url, url_fetcher=fetcher)
+        _refuse_attachment_elements(doc)
         pdf = doc.write_pdf(attachments=atts, pdf_variant=PDF_VARIANT, uncompressed_pdf=False,
                             cache=cache, font_config=font_config)
     except FatalURLFetchingError as exc:
-        raise RenderError(str(exc).strip('"')) from None
+        raise RefusedResource(str(exc).strip('"')) from None
     except (RenderError, _LaterSizeMismatch):
         raise
     except Exception as exc:
         raise RenderError(f"the PDF renderer failed: {type(exc).__name__}: {exc}") from exc
     if fetcher.refused:
-        raise RenderError(f"refused to fetch {fetcher.refused[0]!r}: a package may only use its"
-                          " generated figures and files inside the job's own folder")
+        raise RefusedResource(f"refused to fetch {fetcher.refused[0]!r}: a package may only use"
+                              " its generated figures and files inside the job's own folder")
     return pdf
+
+
+def _refuse_attachment_elements(document) -> None:
+    """Refuse ``<a rel="attachment">`` and ``<link rel="attachment">`` in the HTML.
+
+    WeasyPrint embeds whatever such an element points at (in the PDF's attachments, or
+    as a page annotation that readers of the embedded files do not list); a package
+    embeds exactly the files its manifest lists, passed in by :func:`write_pdf`. The
+    test is WeasyPrint's own, on the tree it lays out, over every namespace.
+    """
+    from weasyprint.html import element_has_link_type
+
+    for element in document.etree_element.iter():
+        tag = element.tag.rsplit("}", 1)[-1] if isinstance(element.tag, str) else ""
+        if tag in ("a", "link") and element_has_link_type(element, "attachment"):
+            raise RefusedResource(
+                f"refused to embed {element.get('href', '')!r} named by a <{tag}"
+                f" rel=\"{element.get('rel')}\"> element: a package embeds only its job,"
+                " results, manifest and the files [package] attachments lists")
