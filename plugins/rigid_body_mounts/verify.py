@@ -16,8 +16,8 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import linalg, optimize
 
-__all__ = ["TOLERANCES", "Independent", "independent_results", "pencil_frequencies",
-           "system_matrices"]
+__all__ = ["TOLERANCES", "Independent", "SteadyState", "independent_results",
+           "peak_over_cycle", "pencil_frequencies", "steady_state", "system_matrices"]
 
 G_N = 9.80665  # standard gravity, m/s² (CGPM 1901): stated again, not imported
 
@@ -229,7 +229,7 @@ def _load(inputs: Mapping[str, object], omega: float, cg: np.ndarray,
     return np.concatenate([fc, np.cross(r, fc)]), np.concatenate([fs, np.cross(r, fs)])
 
 
-def _peak_over_cycle(cos_part: np.ndarray, sin_part: np.ndarray) -> float:
+def peak_over_cycle(cos_part: np.ndarray, sin_part: np.ndarray) -> float:
     """max over t of |c·cos ωt + s·sin ωt|, by sampling a cycle and a bounded search."""
     def size(phase: float) -> float:
         return float(np.linalg.norm(cos_part * math.cos(phase) + sin_part * math.sin(phase)))
@@ -242,11 +242,28 @@ def _peak_over_cycle(cos_part: np.ndarray, sin_part: np.ndarray) -> float:
     return max(size(best), -float(res.fun))
 
 
-def _transmitted(inputs: Mapping[str, object], m: np.ndarray, k: np.ndarray,
-                 springs: Sequence[_Spring], kind: str) -> tuple[np.ndarray, float]:
-    """Structural damping ζ: mount force K_i·u + (2ζ/ω)·K_i·u̇ in steady harmonic motion.
-    q(t) = a·cos ωt + b·sin ωt from the real system
-    [[K − ω²M, 2ζK], [−2ζK, K − ω²M]]·[a; b] = [Fc; Fs]."""
+@dataclass(frozen=True, slots=True, kw_only=True)
+class SteadyState:
+    """One excitation's steady state: q(t) = a·cos ωt + b·sin ωt at the CG, and each
+    mount's force to the support f_i(t) = c_i·cos ωt + s_i·sin ωt (rows in input order)."""
+
+    a: np.ndarray
+    b: np.ndarray
+    mount_cos: np.ndarray
+    mount_sin: np.ndarray
+
+    @property
+    def amplitudes(self) -> np.ndarray:
+        """|q_j|: each coordinate's amplitude √(a_j² + b_j²)."""
+        return np.hypot(self.a, self.b)
+
+
+def steady_state(inputs: Mapping[str, object], kind: str) -> SteadyState:
+    """Structural damping ζ: the mount force is K_i·u + (2ζ/ω)·K_i·u̇ in steady harmonic
+    motion; a and b solve the real system
+    [[K − ω²M, 2ζK], [−2ζK, K − ω²M]]·[a; b] = [Fc; Fs] (the cos and sin balances).
+    ``kind``: "force" or "unbalance"."""
+    m, k = system_matrices(inputs)
     zeta = inputs.get("damping_ratio")
     zeta = 0.05 if zeta is None else float(zeta)
     omega = 2.0 * math.pi * float(inputs["running_speed"])
@@ -256,18 +273,21 @@ def _transmitted(inputs: Mapping[str, object], m: np.ndarray, k: np.ndarray,
     block = np.block([[dyn, 2 * zeta * k], [-2 * zeta * k, dyn]])
     ab = np.linalg.solve(block, np.concatenate([fc, fs]))
     a, b = ab[:6], ab[6:]
-    peaks = []
-    total_c, total_s = np.zeros(3), np.zeros(3)
-    for s in springs:
+    cos_parts, sin_parts = [], []
+    for s in _springs(inputs, cg):
         v = _virtual_displacements(s.offset)
         ua, ub = v @ a, v @ b
-        # u̇ = ω(−ua sin + ub cos): the damping force (2ζ/ω)K u̇ adds 2ζK(ub cos − ua sin)
-        fcos = s.matrix @ (ua + 2 * zeta * ub)
-        fsin = s.matrix @ (ub - 2 * zeta * ua)
-        peaks.append(_peak_over_cycle(fcos, fsin))
-        total_c += fcos
-        total_s += fsin
-    return np.array(peaks), _peak_over_cycle(total_c, total_s)
+        # u̇ = ω(−ua·sin + ub·cos): the damping force (2ζ/ω)·K·u̇ adds 2ζK(ub·cos − ua·sin)
+        cos_parts.append(s.matrix @ (ua + 2 * zeta * ub))
+        sin_parts.append(s.matrix @ (ub - 2 * zeta * ua))
+    return SteadyState(a=a, b=b, mount_cos=np.array(cos_parts), mount_sin=np.array(sin_parts))
+
+
+def _transmitted(inputs: Mapping[str, object], kind: str) -> tuple[np.ndarray, float]:
+    st = steady_state(inputs, kind)
+    peaks = np.array([peak_over_cycle(c, s) for c, s in zip(st.mount_cos, st.mount_sin,
+                                                             strict=True)])
+    return peaks, peak_over_cycle(st.mount_cos.sum(axis=0), st.mount_sin.sum(axis=0))
 
 
 # ------------------------------------------------------------------ the whole
@@ -322,7 +342,7 @@ def independent_results(inputs: Mapping[str, object],
              if inputs.get(key) is not None]
     per_mount = total = None
     if kinds:
-        parts = [_transmitted(inputs, m, k, springs, kind) for kind in kinds]
+        parts = [_transmitted(inputs, kind) for kind in kinds]
         per_mount = np.sum([p[0] for p in parts], axis=0)
         total = float(sum(p[1] for p in parts))
     return Independent(frequencies=freqs, dominant_shares=tuple(_dominant_shares(m, k, freqs)),
