@@ -3,12 +3,15 @@ forms, the reference cases R1–R3 and physical invariants; each check names its
 
 from __future__ import annotations
 
+import ast
 import math
+from pathlib import Path
 
 import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from reportgen_plugins.rigid_body_mounts import method as method_module
 from reportgen_plugins.rigid_body_mounts.analysis import (
     analyse,
     analyse_inputs,
@@ -508,3 +511,52 @@ def test_figure_data():
     chart = frequency_chart(modes, 24.0, orders=(1, 2))
     assert chart.orders == ((1.0, 24.0), (2.0, 48.0))
     assert chart.limit == pytest.approx(24.0 / SQRT2)
+
+
+def test_excitation_input_errors_name_their_field():
+    with pytest.raises(MountingError) as err:
+        rotating_unbalance(0.1, (0, 0, 0), "w")
+    assert err.value.field == "rotor_axis"
+    with pytest.raises(MountingError) as err:
+        harmonic_force(10.0, "up", (0, 0, 0))
+    assert err.value.field == "force_direction"
+
+
+def test_tilt_is_the_angle_of_the_base_from_level():
+    # two rows of mounts of different stiffness, CG midway: each row carries W/2 and
+    # sinks δ = load/k (hand statics of a rigid bar on two springs); the body turns about y
+    rows = [{"x": x, "y": y, "z": 0.0, "k_vertical": k, "k_horizontal": 1e5}
+            for x, k in ((0.0, 2e5), (2.0, 4e5)) for y in (-0.5, 0.5)]
+    inputs = {"mass": 600.0, "cg_x": 1.0, "inertia_xx": 50.0, "inertia_yy": 80.0,
+              "inertia_zz": 100.0, "mounts": rows}
+    _, _, static = solve(inputs)
+    w = 600.0 * G
+    d1, d2 = w / 4 / 2e5, w / 4 / 4e5
+    # the soft x = 0 side sinks more; right-handed, u_z = t_z − θy·(x − x_G), so
+    # θy = (d2 − d1)/span < 0 (the +x side is the higher)
+    assert static.tilt_y == pytest.approx((d2 - d1) / 2.0, rel=1e-10)
+    assert static.tilt_x == pytest.approx(0.0, abs=1e-15)
+    assert static.tilt == pytest.approx(abs(static.tilt_y), rel=1e-12)
+
+
+LAYERS = {  # module → what it may import from reportgen (the plugin's physics stays pure)
+    "method.py": {"reportgen.units": {"STANDARD_GRAVITY"}},
+    "response.py": {},
+    "analysis.py": {"reportgen.units": {"STANDARD_GRAVITY"}},
+    "views.py": {},
+    "catalogue.py": {"reportgen.units": {"DIMENSIONS", "STANDARD_GRAVITY", "UnitProblem",
+                                         "parse_quantity"}},
+}
+
+
+@pytest.mark.parametrize("name", sorted(LAYERS))
+def test_the_physics_modules_import_only_units_from_the_core(name):
+    # DESIGN.md: method modules are pure functions; no document model, no renderer
+    tree = ast.parse((Path(method_module.__file__).parent / name).read_text(encoding="utf-8"))
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Import):
+            assert not any(a.name.split(".")[0] == "reportgen" for a in node.names), name
+        elif isinstance(node, ast.ImportFrom) and node.level == 0 and node.module and \
+                node.module.split(".")[0] == "reportgen":
+            allowed = LAYERS[name].get(node.module, set())
+            assert {a.name for a in node.names} <= allowed, (name, node.module)

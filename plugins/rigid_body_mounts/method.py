@@ -98,6 +98,7 @@ class Body:
     inertia_estimated: bool = False
 
     def tensor(self) -> np.ndarray:
+        """The inertia tensor about the CG (:func:`inertia_tensor`)."""
         return inertia_tensor(*self.inertia)
 
 
@@ -364,6 +365,12 @@ class StaticResult:
     @property
     def in_tension(self) -> tuple[bool, ...]:
         return tuple(bool(p < 0.0) for p in self.loads)
+
+    @property
+    def tilt(self) -> float:
+        """The base's tilt from level, √(θx² + θy²) (rad): for small rotations the angle
+        between the body's z axis and the vertical, whatever the direction."""
+        return math.hypot(self.tilt_x, self.tilt_y)
 
 
 def static_equilibrium(model: RigidBodyModel, gravity: float = STANDARD_GRAVITY) -> StaticResult:

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .method import DEFAULT_DAMPING_RATIO, Modes, RigidBodyModel
+from .method import DEFAULT_DAMPING_RATIO, Modes, MountingError, RigidBodyModel
 
 __all__ = [
     "Excitation",
@@ -64,9 +64,15 @@ def harmonic_force(amplitude: float, direction: str | Sequence[float],
                    point: Sequence[float]) -> Excitation:
     """A force of the given amplitude along "x", "y", "z" or a vector, acting at ``point``."""
     if isinstance(direction, str):
+        if direction not in _AXES:
+            raise MountingError(f"the force direction is \"x\", \"y\" or \"z\", not"
+                                f" {direction!r}", field="force_direction")
         vec = np.eye(3)[_AXES[direction]]
     else:
         vec = np.asarray(direction, dtype=float)
+        if vec.shape != (3,) or not np.linalg.norm(vec) > 0.0:
+            raise MountingError("the force direction must be a non-zero vector",
+                                field="force_direction")
         vec = vec / np.linalg.norm(vec)
     return Excitation(kind="force", amplitude=float(amplitude),
                       point=tuple(float(c) for c in point),
@@ -76,6 +82,9 @@ def harmonic_force(amplitude: float, direction: str | Sequence[float],
 def rotating_unbalance(unbalance: float, point: Sequence[float], axis: str) -> Excitation:
     """A rotor's unbalance m·e (kg·m) at ``point`` spinning about "x", "y" or "z": the force
     m·e·ω² turns with the rotor (Thomson & Dahleh §3.3)."""
+    if axis not in _AXES:
+        raise MountingError(f"the rotor axis is \"x\", \"y\" or \"z\", not {axis!r}",
+                            field="rotor_axis")
     return Excitation(kind="unbalance", amplitude=float(unbalance),
                       point=tuple(float(c) for c in point), axis=axis)
 
