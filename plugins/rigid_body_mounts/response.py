@@ -124,8 +124,10 @@ def forced_response(model: RigidBodyModel, modes: Modes, excitation: Excitation,
     complex_k = 1.0 + 2j * damping_ratio
     modal = (load @ phi) / (lam[None, :] * complex_k - omega[:, None] ** 2)
     q = modal @ phi.T
-    forces = complex_k * np.einsum("nab,nbj,fj->fna", model.mount_stiffness,
-                                   model.transforms, q)
+    # K_i·T_i stacked as one (3N × 6) matrix: one product for every frequency at once
+    kt = np.einsum("nab,nbj->naj", model.mount_stiffness, model.transforms)
+    n = kt.shape[0]
+    forces = (complex_k * (q @ kt.reshape(3 * n, 6).T)).reshape(len(freqs), n, 3)
     total = forces.sum(axis=1)
     return ForcedResponse(frequencies=freqs, displacement=q, mount_forces=forces,
                           mount_peaks=cycle_peak(forces), total_force=total,
