@@ -1,8 +1,5 @@
-"""The physics of a rigid body on resilient mounts in six degrees of freedom.
-
-Owns the body and mount values, the 6 × 6 mass and stiffness matrices about the centre of
-gravity, the modes and the static equilibrium under the weight (response.py: the forced
-response; analysis.py: job inputs in, results out).
+"""A rigid body on resilient mounts in six degrees of freedom: the body and mount values,
+the 6 × 6 mass and stiffness matrices about the CG, the modes and the static equilibrium.
 
 Conventions (every function below follows them):
 
