@@ -43,7 +43,7 @@ __all__ = [
 ]
 
 _METHOD = "bay method (DG11 Ch. 3-4)"
-#: DG11 Eq. 3-3: f = 0.18·√(g/Δ); the exact simply supported value is (π/2)·√(5/384) = 0.1777.
+#: DG11 Eq. 3-3: f = 0.18·√(g/Δ); the exact simply supported value is (π/2)·√(5/384) = 0.1792.
 FREQUENCY_COEFFICIENT = 0.18
 #: DG11 Ch. 4, C_j: 2.0 for beams in most areas, 1.0 for beams parallel to a free (edge) side.
 BEAM_COEFFICIENTS = {"interior": 2.0, "edge": 1.0}

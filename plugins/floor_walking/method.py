@@ -63,11 +63,14 @@ class OutOfMethodRange(FloorMethodError):
         self.limit = limit
         self.unit = unit
         self.method = method
-        word = "above" if above else "not above"
         sep = " " if unit else ""
-        super().__init__(
-            f"{quantity} {value:.4g}{sep}{unit} is {word} the {limit:.4g}{sep}{unit} limit"
-            f" of the {method}")
+        if above:
+            text = f"is above the {limit:.4g}{sep}{unit} limit of the"
+        elif limit == 0.0:
+            text = "must be positive for the"
+        else:
+            text = f"is not above the {limit:.4g}{sep}{unit} lower limit of the"
+        super().__init__(f"{quantity} {value:.4g}{sep}{unit} {text} {method}")
 
 
 def require_positive(quantity: str, value: float, unit: str, method: str) -> None:
