@@ -424,6 +424,9 @@ def test_high_frequency_check_and_its_refusal():
     assert r.step_frequency == 2.2  # top of DG11 Ch. 4's walking range 1.6-2.2 Hz (from memory)
     assert r.peak_acceleration_ratio == pytest.approx(r.footstep.equivalent_peak_acceleration / G)
     assert r.passes == (r.ratio_to_limit <= 1)
+    with pytest.raises(method.OutOfMethodRange, match="damping ratio 0 must be positive"):
+        equipment.footstep_response(natural_frequency=12.0, effective_weight=2e5,
+                                    damping_ratio=0.0, step_frequency=2.0)
     with pytest.raises(method.OutOfMethodRange, match="8 Hz is not above the 9 Hz lower limit"):
         equipment.high_frequency_response(natural_frequency=8.0, effective_weight=200e3,
                                           damping_ratio=0.03, limit_ratio=0.005)

@@ -123,6 +123,11 @@ def footstep_response(*, natural_frequency: float, effective_weight: float,
 
     the rms of a lightly damped decaying sinusoid over h cycles (β ≪ 1).
     """
+    for name, value, unit in (("natural frequency", natural_frequency, "Hz"),
+                              ("effective weight", effective_weight, "N"),
+                              ("damping ratio", damping_ratio, ""),
+                              ("step frequency", step_frequency, "Hz")):
+        require_positive(name, value, unit, "footstep method")
     mass = modal_mass(effective_weight)
     impulse = effective_impulse(step_frequency, natural_frequency)
     v_p = impulse / mass
@@ -156,12 +161,8 @@ def high_frequency_response(*, natural_frequency: float, effective_weight: float
     """Floors above 9 Hz: the equivalent sinusoidal peak acceleration of one footstep
     (footstep_response) against a0/g; refuses floors at or below 9 Hz, which resonate."""
     method = "high-frequency footstep method"
-    for name, value, unit in (("natural frequency", natural_frequency, "Hz"),
-                              ("effective weight", effective_weight, "N"),
-                              ("damping ratio", damping_ratio, ""),
-                              ("step frequency", step_frequency, "Hz"),
-                              ("acceleration limit a0/g", limit_ratio, "")):
-        require_positive(name, value, unit, method)
+    require_positive("natural frequency", natural_frequency, "Hz", method)
+    require_positive("acceleration limit a0/g", limit_ratio, "", method)
     if natural_frequency <= LOW_FREQUENCY_LIMIT:
         raise OutOfMethodRange("natural frequency", natural_frequency, LOW_FREQUENCY_LIMIT,
                                "Hz", method, above=False)
