@@ -30,8 +30,10 @@ class ResponseCurves:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class BlockSketch:
-    """Dimensions (m) and points (x, y, z from the centre of the base) for a sketch."""
+    """Dimensions (m) and points (x, y, z from the centre of the base) for a sketch; a
+    circular plinth has length = width = its diameter."""
 
+    circular: bool
     length: float
     width: float
     height: float
@@ -73,7 +75,8 @@ def block_sketch(analysis: FoundationAnalysis) -> BlockSketch:
     """The block with its centres of gravity, the force's height and the equivalent radii."""
     p, r = analysis.mass_properties, analysis.radii
     return BlockSketch(
-        length=analysis.block_length, width=analysis.block_width, height=analysis.block_height,
+        circular=analysis.circular_base, length=analysis.block_length,
+        width=analysis.block_width, height=analysis.block_height,
         block_cg=(0.0, 0.0, analysis.block_height / 2.0), machine_cg=analysis.machine_cg,
         combined_cg=(p.x, p.y, p.z), force_height=analysis.force_height,
         shaft_axis=analysis.shaft_axis, radius_translation=r.translation,

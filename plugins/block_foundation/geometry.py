@@ -79,6 +79,20 @@ def block_part(*, length: float, width: float, height: float, density: float) ->
                      inertia_z=m * (length**2 + width**2) / 12.0)
 
 
+def cylinder_part(*, diameter: float, height: float, density: float) -> RigidPart:
+    """A solid circular plinth on the base plane: m = ρ·π·r²·H; I_x = I_y = m(3r² + H²)/12,
+    I_z = m·r²/2 about its centroid (solid cylinder; any dynamics text)."""
+    for name, value in (("block_diameter", diameter), ("block_height", height),
+                        ("concrete_density", density)):
+        if not value > 0.0:
+            raise FoundationError(name, f"must be greater than zero (got {value:g})")
+    r = diameter / 2.0
+    m = density * math.pi * r * r * height
+    i_diam = m * (3.0 * r * r + height**2) / 12.0
+    return RigidPart(mass=m, z=height / 2.0, inertia_x=i_diam, inertia_y=i_diam,
+                     inertia_z=m * r * r / 2.0)
+
+
 def combine(parts: Sequence[RigidPart]) -> MassProperties:
     """One rigid body from several: the mass-weighted centre of gravity and the parallel-axis
     theorem, I = Σ(I_i + m_i·d_i²), d_i the distance between parallel axes (any dynamics text).

@@ -23,7 +23,9 @@ from .geometry import (
     RigidPart,
     block_part,
     cg_eccentricity,
+    circular_radii,
     combine,
+    cylinder_part,
     equivalent_radii,
     static_bearing_pressure,
 )
@@ -80,6 +82,7 @@ class FoundationAnalysis:
     block_length: float
     block_width: float
     block_height: float
+    circular_base: bool
     block_mass: float
     machine_mass: float
     machine_cg: tuple[float, float, float]
@@ -184,17 +187,47 @@ def rocking_plane(*, axis: str, props: MassProperties, horizontal: ModeConstants
                                                                        base_inertia))
 
 
-def _check_machine(*, length: float, width: float, cg_height: float, cg_x: float, cg_y: float,
+@dataclass(frozen=True, slots=True, kw_only=True)
+class _Base:
+    part: RigidPart
+    radii: EquivalentRadii
+    length: float  # extent along x (a circle's diameter)
+    width: float  # extent along y
+    area: float
+    circular: bool
+
+
+def _base(*, length: float | None, width: float | None, diameter: float | None,
+          height: float, density: float) -> _Base:
+    """A rectangular block (length and width) or a circular plinth (diameter)."""
+    if diameter is not None:
+        if length is not None or width is not None:
+            raise FoundationError("block_diameter", "give block_diameter for a circular plinth"
+                                  " or block_length and block_width, not both")
+        return _Base(part=cylinder_part(diameter=diameter, height=height, density=density),
+                     radii=circular_radii(diameter / 2.0), length=diameter, width=diameter,
+                     area=math.pi * diameter**2 / 4.0, circular=True)
+    if length is None or width is None:
+        raise FoundationError("block_length", "give block_length and block_width")
+    return _Base(part=block_part(length=length, width=width, height=height, density=density),
+                 radii=equivalent_radii(length=length, width=width), length=length,
+                 width=width, area=length * width, circular=False)
+
+
+def _check_machine(*, base: _Base, cg_height: float, cg_x: float, cg_y: float,
                    force_height: float, inertias: tuple[float, float, float]) -> None:
     if not cg_height > 0.0:
         raise FoundationError("machine_cg_height",
                               "the machine's centre of gravity must be above the base")
-    if abs(cg_x) > length / 2.0:
+    if base.circular and math.hypot(cg_x, cg_y) > base.length / 2.0:
+        raise FoundationError("machine_cg_x", "the machine's centre of gravity is outside the"
+                              f" plinth (its radius is {base.length / 2:g} m)")
+    if abs(cg_x) > base.length / 2.0:
         raise FoundationError("machine_cg_x", f"{cg_x:g} m puts the machine's centre of gravity"
-                              f" outside the block (half its length is {length / 2:g} m)")
-    if abs(cg_y) > width / 2.0:
+                              f" outside the block (half its length is {base.length / 2:g} m)")
+    if abs(cg_y) > base.width / 2.0:
         raise FoundationError("machine_cg_y", f"{cg_y:g} m puts the machine's centre of gravity"
-                              f" outside the block (half its width is {width / 2:g} m)")
+                              f" outside the block (half its width is {base.width / 2:g} m)")
     if force_height < 0.0:
         raise FoundationError("force_height", "the force cannot act below the base")
     for name, value in zip(("machine_inertia_x", "machine_inertia_y", "machine_inertia_z"),
@@ -204,9 +237,10 @@ def _check_machine(*, length: float, width: float, cg_height: float, cg_x: float
 
 
 def analyse_block_foundation(
-    *, block_length: float, block_width: float, block_height: float, concrete_density: float,
-    machine_mass: float, machine_cg_height: float, poisson_ratio: float, soil_density: float,
-    running_speed: float, shear_modulus: float | None = None,
+    *, block_height: float, concrete_density: float, machine_mass: float,
+    machine_cg_height: float, poisson_ratio: float, soil_density: float, running_speed: float,
+    block_length: float | None = None, block_width: float | None = None,
+    block_diameter: float | None = None, shear_modulus: float | None = None,
     shear_wave_velocity: float | None = None, machine_cg_x: float = 0.0,
     machine_cg_y: float = 0.0, machine_inertia_x: float = 0.0, machine_inertia_y: float = 0.0,
     machine_inertia_z: float = 0.0, embedment_depth: float = 0.0,
@@ -214,7 +248,8 @@ def analyse_block_foundation(
     rotor_mass: float | None = None, force_amplitude: float | None = None,
     force_height: float | None = None, shaft_axis: str = "y",
 ) -> FoundationAnalysis:
-    """The whole calc for a rectangular block (inputs SI, speeds in Hz).
+    """The whole calc for a rectangular block (``block_length`` along x, ``block_width``
+    along y) or a circular plinth (``block_diameter``); inputs SI, speeds in Hz.
 
     ``shaft_axis`` "y" (default) puts the horizontal force along x (block_length) and the
     rocking about y; "x" the other way round. ``force_height`` defaults to the machine's
@@ -234,17 +269,17 @@ def analyse_block_foundation(
         raise FoundationError("shaft_axis", f"must be \"x\" or \"y\" (got {shaft_axis!r})")
     fh = machine_cg_height if force_height is None else force_height
     inertias = (machine_inertia_x, machine_inertia_y, machine_inertia_z)
-    _check_machine(length=block_length, width=block_width, cg_height=machine_cg_height,
-                   cg_x=machine_cg_x, cg_y=machine_cg_y, force_height=fh, inertias=inertias)
+    base = _base(length=block_length, width=block_width, diameter=block_diameter,
+                 height=block_height, density=concrete_density)
+    _check_machine(base=base, cg_height=machine_cg_height, cg_x=machine_cg_x, cg_y=machine_cg_y,
+                   force_height=fh, inertias=inertias)
     if not machine_mass > 0.0:
         raise FoundationError("machine_mass", "must be greater than zero")
-    block = block_part(length=block_length, width=block_width, height=block_height,
-                       density=concrete_density)
+    block, radii = base.part, base.radii
     machine = RigidPart(mass=machine_mass, x=machine_cg_x, y=machine_cg_y, z=machine_cg_height,
                         inertia_x=machine_inertia_x, inertia_y=machine_inertia_y,
                         inertia_z=machine_inertia_z)
     props = combine((block, machine))
-    radii = equivalent_radii(length=block_length, width=block_width)
     g = soil_shear_modulus(soil_density=soil_density, shear_modulus=shear_modulus,
                            shear_wave_velocity=shear_wave_velocity)
     nu, rho = poisson_ratio, soil_density
@@ -270,7 +305,8 @@ def analyse_block_foundation(
     at_force = float(co.horizontal_amplitude(fh))
     bearing = max(float(vz.amplitude), at_force)
     return FoundationAnalysis(
-        block_length=block_length, block_width=block_width, block_height=block_height,
+        block_length=base.length, block_width=base.width, block_height=block_height,
+        circular_base=base.circular,
         block_mass=block.mass, machine_mass=machine_mass,
         machine_cg=(machine_cg_x, machine_cg_y, machine_cg_height), mass_properties=props,
         radii=radii,
@@ -278,7 +314,7 @@ def analyse_block_foundation(
         soil_density=rho, excitation=exc, force_height=fh, shaft_axis=shaft_axis,
         vertical=vertical, torsion=torsion, plane_x=plane_x, plane_y=plane_y,
         total_mass=props.mass,
-        static_bearing_pressure=static_bearing_pressure(props.mass, block_length * block_width),
+        static_bearing_pressure=static_bearing_pressure(props.mass, base.area),
         vertical_stiffness=vertical.stiffness, vertical_damping_ratio=vertical.damping_ratio,
         vertical_natural_frequency=undamped_frequency(vertical.stiffness, props.mass),
         vertical_amplitude=float(vz.amplitude), horizontal_stiffness=horizontal.stiffness,
@@ -287,7 +323,7 @@ def analyse_block_foundation(
         horizontal_amplitude=float(co.horizontal_amplitude(block_height)),
         torsional_natural_frequency=undamped_frequency(torsion.stiffness, props.inertia_z),
         mass_ratio=block.mass / machine_mass,
-        cg_eccentricity=cg_eccentricity(props, length=block_length, width=block_width),
+        cg_eccentricity=cg_eccentricity(props, length=base.length, width=base.width),
         running_force=force, vertical_phase_lag=float(vz.phase_lag),
         vertical_force_to_soil=float(vz.force_to_soil), horizontal_amplitude_at_force=at_force,
         rocking_amplitude=float(co.rocking_amplitude()), bearing_amplitude=bearing,
