@@ -16,9 +16,8 @@ import re
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import linalg
+from scipy import linalg, optimize
 
-_DOF = ("x", "y", "z", "rx", "ry", "rz")
 _ISO_GRADES = (0.4, 1.0, 2.5, 6.3, 16.0, 40.0, 100.0, 250.0, 630.0, 1600.0, 4000.0)
 
 
@@ -141,10 +140,17 @@ def second_method(
     mm[:3, :3] = m * np.eye(3)
     mm[3:, 3:] = j
 
-    # natural frequencies and the dominant motion of each mode (kinetic-energy share)
+    # natural frequencies, each mode given to the motion that holds most of its kinetic
+    # energy; an assignment (two modes per sliding-rocking plane) stays right when a square
+    # base makes the two planes' modes coincide and eigh mixes them
     lam, phi = linalg.eigh(kk, mm)
     freqs = np.sqrt(lam) / (2.0 * math.pi)
-    labels = tuple(_DOF[int(np.argmax(phi[:, i] * (mm @ phi[:, i])))] for i in range(6))
+    share = phi * (mm @ phi)  # share[dof, mode]; each column sums to 1
+    groups = {"x-plane": (0, 4), "y-plane": (1, 3), "z": (2,), "rz": (5,)}
+    slots = ["x-plane", "x-plane", "y-plane", "y-plane", "z", "rz"]
+    weight = np.array([[share[list(groups[g]), i].sum() for g in slots] for i in range(6)])
+    rows, cols = optimize.linear_sum_assignment(-weight)
+    labels = tuple(slots[c] for _, c in sorted(zip(rows, cols, strict=True)))
 
     # steady state under the rotating force: horizontal component perpendicular to the shaft,
     # vertical component a quarter-turn behind it
@@ -159,10 +165,10 @@ def second_method(
     top = _point_map(np.array([0.0, 0.0, hz - cg[2]])) @ q
     at_force = _point_map(np.array([0.0, 0.0, fh - cg[2]])) @ q
 
-    plane = {"x", "ry"} if h_dir == 0 else {"y", "rx"}
-    coupled = sorted(float(f) for f, lab in zip(freqs, labels, strict=True) if lab in plane)
-    torsion = [float(f) for f, lab in zip(freqs, labels, strict=True) if lab == "rz"]
-    vertical_eig = [float(f) for f, lab in zip(freqs, labels, strict=True) if lab == "z"]
+    def mode(label: str) -> list[float]:
+        return sorted(float(f) for f, lab in zip(freqs, labels, strict=True) if lab == label)
+
+    coupled = mode("x-plane" if h_dir == 0 else "y-plane")
     values = {
         "total_mass": m,
         "static_bearing_pressure": m * 9.80665 / area,
@@ -177,12 +183,10 @@ def second_method(
         "horizontal_amplitude_at_force": float(abs(at_force[h_dir])),
         "mass_ratio": mb / machine_mass,
         "cg_eccentricity": max(abs(cg[0]) / lx, abs(cg[1]) / ly),
+        "coupled_frequency_1": coupled[0],
+        "coupled_frequency_2": coupled[1],
+        "torsional_natural_frequency": mode("rz")[0],
+        "vertical_natural_frequency_eigen": mode("z")[0],
     }
-    if len(coupled) == 2:
-        values["coupled_frequency_1"], values["coupled_frequency_2"] = coupled
-    if len(torsion) == 1:
-        values["torsional_natural_frequency"] = torsion[0]
-    if len(vertical_eig) == 1:
-        values["vertical_natural_frequency_eigen"] = vertical_eig[0]
     return SecondMethod(values=values, frequencies=tuple(float(f) for f in freqs),
                         mode_labels=labels)
