@@ -17,6 +17,7 @@ with D_θ = 0.5/(1+2B_θ); F1 follows the latter (c_θ = 5.703e6 N·s·m), and s
 
 from __future__ import annotations
 
+import ast
 import json
 import math
 from pathlib import Path
@@ -34,7 +35,11 @@ from reportgen_plugins.block_foundation.excitation import (
 )
 from reportgen_plugins.block_foundation.figures import block_sketch, response_curves
 from reportgen_plugins.block_foundation.geometry import equivalent_radii
-from reportgen_plugins.block_foundation.halfspace import ModeConstants, vertical_constants
+from reportgen_plugins.block_foundation.halfspace import (
+    ModeConstants,
+    dimensionless_frequency,
+    vertical_constants,
+)
 from reportgen_plugins.block_foundation.method import (
     RESULT_KEYS,
     analyse_block_foundation,
@@ -246,6 +251,27 @@ def test_damping_ratios_are_the_dashpots(case, f1, f2):
             mode.damping / (2 * math.sqrt(mode.stiffness * mode.inertia)), rel=1e-12)
 
 
+def test_natural_frequency_is_lysmers_dimensionless_frequency(f1, f2):
+    # Lysmer's mass-ratio form: at the vertical natural frequency a₀ = ω·r/Vs = 1/√B_z
+    # (Richart, Hall & Woods 1970, Ch. 7; follows from k_z and B_z)
+    for a in (f1, f2):
+        a0 = dimensionless_frequency(frequency=a.vertical_natural_frequency,
+                                     radius=a.radii.translation, g=a.shear_modulus,
+                                     rho=a.soil_density)
+        assert a0 == pytest.approx(1 / math.sqrt(a.vertical.mass_ratio), rel=1e-12)
+
+
+def test_method_modules_import_only_gravity_from_the_core():
+    # the physics stands alone: from reportgen only the standard gravity constant
+    for path in Path(block_sketch.__code__.co_filename).parent.glob("*.py"):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.Import):
+                assert not any(a.name.startswith("reportgen") for a in node.names), path.name
+            elif isinstance(node, ast.ImportFrom) and (node.module or "").startswith("reportgen"):
+                assert node.module == "reportgen.units", path.name
+                assert [a.name for a in node.names] == ["STANDARD_GRAVITY"], path.name
+
+
 def test_equivalent_radii_match_area_and_second_moments():
     # the definitions (Richart, Hall & Woods 1970, Ch. 10): equal area, equal second moment
     # of area about the rocking axis, equal polar moment
@@ -454,6 +480,7 @@ def test_block_sketch_numbers(f2):
     ({"unbalance": None, "balance_grade": "G6.3", "rotor_mass": 9500.0}, "rotor_mass"),
     ({"unbalance": None, "balance_grade": "G6.3"}, "rotor_mass"),
     ({"block_diameter": 4.0}, "block_diameter"),
+    ({"shear_wave_velocity": 2.0}, "shear_modulus"),  # m·g·h > k_ψ: it would topple
 ])
 def test_impossible_foundations_are_refused_by_field(change, field):
     with pytest.raises(FoundationError) as err:

@@ -15,6 +15,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from reportgen.units import STANDARD_GRAVITY
+
 from .errors import FoundationError
 from .excitation import Excitation, excitation
 from .geometry import (
@@ -174,6 +176,12 @@ def rocking_plane(*, axis: str, props: MassProperties, horizontal: ModeConstants
     base_inertia = props.rocking_inertia_y if axis == "x" else props.rocking_inertia_x
     rocking = rocking_constants(g=g, nu=nu, rho=rho, radius=rocking_radius,
                                 base_inertia=base_inertia)
+    overturning = props.mass * STANDARD_GRAVITY * props.z
+    if overturning >= rocking.stiffness:
+        raise FoundationError(
+            "shear_modulus", f"the soil is too soft to hold the block upright: its rocking"
+            f" stiffness ({rocking.stiffness:.4g} N·m/rad) is below the overturning moment of"
+            f" the weight per radian ({overturning:.4g} N·m/rad)")
     f1, f2 = coupled_frequencies(horizontal_stiffness=horizontal.stiffness,
                                  rocking_stiffness=rocking.stiffness, mass=props.mass,
                                  inertia_cg=inertia_cg, cg_height=props.z)

@@ -66,7 +66,9 @@ def coupled_frequencies(*, horizontal_stiffness: float, rocking_stiffness: float
     ω⁴ − ω²·(ω_x² + ω_ψ²)/γ + ω_x²·ω_ψ²/γ = 0, ω_x² = k_x/m, ω_ψ² = k_ψ/I₀,
     γ = I_cg/I₀, I₀ = I_cg + m·h² (Richart, Hall & Woods 1970, Ch. 10; the equation form
     from memory, re-derived from the equations of motion about the centre of gravity with
-    the springs at the base, h the height of the centre of gravity above it).
+    the springs at the base, h the height of the centre of gravity above it). Gravity's
+    overturning term −m·g_n·h is left out, as in the method's source: for ordinary blocks on
+    soil it is a fraction of a per cent of k_ψ.
     """
     i0 = inertia_cg + mass * cg_height**2
     wx2, wp2, gamma = horizontal_stiffness / mass, rocking_stiffness / i0, inertia_cg / i0
