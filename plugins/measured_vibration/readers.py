@@ -28,6 +28,7 @@ _HEADER = re.compile(r"^\s*(?P<name>[^\[\]]*?)\s*(?:\[(?P<unit>[^\[\]]*)\])?\s*$
 # from the mean step by the rounding of two values. 10 % of a step still catches a dropped,
 # repeated or reordered sample.
 _STEP_TOLERANCE = 0.1
+_SNAP = 1e-5
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -256,12 +257,17 @@ def _open_csv(path, file, channels, time_column, sample_rate, quantity, unit) ->
         raise DataFileError(file, f"the time column steps by {step:.6g} s ({1 / step:.6g}"
                                   f" samples/s), but sample_rate = {sample_rate:g} Hz",
                             column=cells[t_index])
-    return replace(record, sample_rate=1.0 / step, start_time=start)
+    rate = 1.0 / step
+    if abs(rate - round(rate)) <= _SNAP * rate:
+        # time stamps printed with few digits blur the mean step; a rate within 10 ppm of a
+        # whole number of samples per second is that number (0.9 s over a day)
+        rate = float(round(rate))
+    return replace(record, sample_rate=rate, start_time=start)
 
 
 def _csv_time_base(record: Record) -> tuple[float, float]:
     """(time of the first sample, mean step) from the first rows of the time column."""
-    for _, _, times, numbers in _csv_blocks(record, 4096, with_time=True):
+    for _, _, times, numbers in _csv_blocks(record, 1 << 16, with_time=True):
         if times.size < 2:
             break
         guess = float(np.median(np.diff(times)))

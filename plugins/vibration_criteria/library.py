@@ -138,14 +138,22 @@ def limit_at(criterion: Criterion, frequencies: float | Iterable[float]) -> np.n
         return np.full(f.shape, criterion.values[0])
     fp = np.asarray(criterion.frequencies)
     vp = np.asarray(criterion.values)
-    if criterion.interpolation == "linear":
-        return np.interp(f, fp, vp)
-    if criterion.interpolation == "step":
-        i = np.clip(np.searchsorted(fp, f, side="right") - 1, 0, len(fp) - 1)
+    i = np.clip(np.searchsorted(fp, f, side="right") - 1, 0, len(fp) - 1)
+    if criterion.interpolation == "step" or len(fp) == 1:
         return vp[i]
-    with np.errstate(divide="ignore"):
-        logf = np.log(np.where(f > 0, f, fp[0]))
-    return np.exp(np.interp(logf, np.log(fp), np.log(vp)))
+    # Segment-wise v_i·(v_i+1/v_i)^t (log-log) or v_i + (v_i+1 − v_i)·t (linear): exact at
+    # the points and on flat segments, so a level equal to a tabulated limit meets it.
+    i = np.minimum(i, len(fp) - 2)
+    lo, hi = fp[i], fp[i + 1]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        if criterion.interpolation == "linear":
+            t = (f - lo) / (hi - lo)
+        else:
+            t = np.log(np.where(f > 0, f, lo) / lo) / np.log(hi / lo)
+    t = np.clip(t, 0.0, 1.0)  # the end values hold outside the points
+    if criterion.interpolation == "linear":
+        return vp[i] + (vp[i + 1] - vp[i]) * t
+    return vp[i] * (vp[i + 1] / vp[i]) ** t
 
 
 def ratios(criterion: Criterion, frequencies: Iterable[float],
