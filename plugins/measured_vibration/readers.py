@@ -9,6 +9,7 @@ import itertools
 import math
 import os
 import re
+import warnings
 from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
@@ -373,9 +374,10 @@ def _check_times(record, times, numbers, index, t0, step, previous) -> float:
     odd = np.flatnonzero(np.abs(diffs - step) > _STEP_TOLERANCE * step)
     if odd.size:
         i = odd[0]
+        usual = float(np.median(diffs))
         raise DataFileError(record.file, f"irregular sampling: the time steps by"
-                                         f" {diffs[i]:.6g} s here, {step:.6g} s elsewhere"
-                                         f" ({1 / step:.6g} samples/s)", column=name,
+                                         f" {diffs[i]:.6g} s here, {usual:.6g} s elsewhere"
+                                         f" ({1 / usual:.6g} samples/s)", column=name,
                             row=int(lines[i + 1]))
     # Against the grid t0 + i·step too, so that a slow drift cannot pass step by step.
     last = index + times.size - 1
@@ -402,10 +404,12 @@ def _open_array(record: Record) -> tuple[np.ndarray, float]:
         else:
             from scipy.io import wavfile
 
-            try:
-                rate, data = wavfile.read(record.path, mmap=True)
-            except ValueError:  # 24-bit samples cannot be mapped: read them whole
-                rate, data = wavfile.read(record.path)
+            with warnings.catch_warnings():  # chunks other than the samples (LIST…) are fine
+                warnings.simplefilter("ignore", wavfile.WavFileWarning)
+                try:
+                    rate, data = wavfile.read(record.path, mmap=True)
+                except ValueError:  # 24-bit samples cannot be mapped: read them whole
+                    rate, data = wavfile.read(record.path)
     except (OSError, ValueError, EOFError) as exc:
         raise DataFileError(record.file, f"cannot be read as {record.format.upper()} ({exc})"
                             ) from None
