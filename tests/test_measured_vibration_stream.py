@@ -184,3 +184,27 @@ def test_result_keys_for_one_and_several_channels():
     # energetic sum of the bands (acoustics practice for an overall level from bands)
     ch = result.channels[0]
     assert ch.overall_velocity_rms == pytest.approx(math.sqrt(np.sum(ch.band_levels ** 2)))
+
+
+def test_ppv_mode_takes_a_short_event_record(tmp_path):
+    # A 3 s blast-like event (decaying 20 Hz, invented): too short for band levels, enough
+    # for the peak. PPV is the largest |v| (DIN 4150-3 / BS 7385-2 definition of the peak
+    # component particle velocity); its half cycle gives 20 Hz.
+    fs = 1000.0
+    t = np.arange(int(3 * fs)) / fs
+    v = 8e-3 * np.exp(-3 * (t - 1.0).clip(0)) * np.sin(2 * np.pi * 20 * (t - 1.0)) * (t >= 1)
+    plan = make_plan(sample_rate=fs, quantity="velocity", channels=("v",), ppv_only=True)
+    path = tmp_path / "event.npy"
+    np.save(path, v)
+    streamed = analyse_record(open_record(path, sample_rate=fs, unit="m/s"), plan, chunk=500)
+    _same(analyse_array(v, plan), streamed)
+    ch = streamed.channels[0]
+    assert ch.peak_velocity == pytest.approx(np.abs(v).max()) and ch.peak_frequency == (
+        pytest.approx(20.0, rel=0.01))
+    (line1,) = assess_ppv(streamed, lookup("DIN4150-3-line1"))
+    assert line1.limit == pytest.approx(25e-3) and line1.ratio == pytest.approx(
+        ch.peak_velocity / 25e-3)  # 20 + (20 − 10)·20/40 mm/s at 20 Hz (from memory)
+    with pytest.raises(Exception, match="integration needs"):
+        accel = make_plan(sample_rate=fs, quantity="acceleration", channels=("v",),
+                          ppv_only=True)
+        analyse_array(v, accel)

@@ -66,6 +66,7 @@ class Plan:
     block: int | None  # samples per averaging block, None for one rms over the record
     nperseg: int  # Welch segment length
     file: str = ""
+    ppv_only: bool = False  # peak values only: no settling, no minimum span of band periods
 
     @property
     def start(self) -> int:
@@ -74,6 +75,8 @@ class Plan:
 
     def required_samples(self) -> int:
         """The shortest record this plan can analyse (see ``check_length``)."""
+        if self.ppv_only:
+            return 2 * self.half + 2
         span = math.ceil(PERIODS_REQUIRED * self.sample_rate / float(self.bands.centre[0]))
         return self.start + max(span, self.block or 0) + self.half
 
@@ -120,9 +123,12 @@ def make_plan(
     band_high: float = 80.0,
     averaging_time: float | None = None,
     file: str = "",
+    ppv_only: bool = False,
 ) -> Plan:
     """Check the settings against the sample rate and design the filters.
 
+    ``ppv_only`` (construction vibration, where an event may last a few seconds): the record
+    need only outlast the integration; band levels are then indicative (filters unsettled).
     Raises DataFileError naming the field when the upper band edge is not below
     NYQUIST_FRACTION × sample rate, or an averaging time is not positive.
     """
@@ -148,17 +154,17 @@ def make_plan(
     lower = float(bands.lower[0])
     taps = integrator_taps(sample_rate, lower) if quantity == "acceleration" else None
     half = 0 if taps is None else taps.size // 2
-    settle = _settle_samples(sos[0], sample_rate, float(bands.centre[0]), lower,
-                             float(bands.upper[0]))
+    settle = 0 if ppv_only else _settle_samples(sos[0], sample_rate, float(bands.centre[0]),
+                                                lower, float(bands.upper[0]))
     # Welch resolution: about half the lowest band's width, a power-of-two segment.
     nperseg = 1 << max(4, int(math.floor(math.log2(sample_rate / ((float(bands.upper[0])
                                                                    - lower) / 2.0)))))
     return Plan(sample_rate=sample_rate, quantity=quantity, channels=channels, bands=bands,
                 sos=sos, taps=taps, half=half, settle=settle, block=block, nperseg=nperseg,
-                file=file)
+                file=file, ppv_only=ppv_only)
 
 
-def check_length(plan: Plan, n_samples: int) -> None:
+def check_length(plan: Plan, n_samples: int, file: str | None = None) -> None:
     """A record must hold: the integration half-length M at each end, the filters' settling
     time, and then at least PERIODS_REQUIRED periods of the lowest band centre (and one full
     averaging block). Raises DataFileError saying the numbers."""
@@ -169,12 +175,17 @@ def check_length(plan: Plan, n_samples: int) -> None:
         if plan.half:
             parts.insert(0, f"2 × {plan.half / fs:.3g} s lost to the integration at the ends")
         span = max(PERIODS_REQUIRED / float(plan.bands.centre[0]), (plan.block or 0) / fs)
+        if plan.ppv_only:
+            raise DataFileError(file or plan.file, f"the record is {n_samples / fs:.4g} s long;"
+                                f" integration needs at least {need / fs:.4g} s",
+                                column="band_low")
+        block = ", or one averaging block" if plan.block else ""
         raise DataFileError(
-            plan.file, f"the record is {n_samples / fs:.4g} s long ({n_samples} samples); with"
-                       f" band_low = {plan.bands.nominal[0]:g} Hz it must be at least"
-                       f" {need / fs:.4g} s: {', '.join(parts)}, then {span:.4g} s analysed"
-                       f" ({PERIODS_REQUIRED:g} periods of {plan.bands.centre[0]:.4g} Hz"
-                       + (", or one averaging block" if plan.block else "") + ")",
+            file or plan.file,
+            f"the record is {n_samples / fs:.4g} s long ({n_samples} samples); with band_low ="
+            f" {plan.bands.nominal[0]:g} Hz it must be at least {need / fs:.4g} s:"
+            f" {', '.join(parts)}, then {span:.4g} s analysed ({PERIODS_REQUIRED:g} periods of"
+            f" {plan.bands.centre[0]:.4g} Hz{block})",
             column="band_low")
 
 
@@ -249,7 +260,7 @@ def analyse_record(record: Record, plan: Plan, chunk: int = DEFAULT_CHUNK) -> An
     envelope (≤ 2 × ENVELOPE_BUCKETS values per channel), whatever the record's length.
     """
     if record.n_samples is not None:
-        check_length(plan, record.n_samples)
+        check_length(plan, record.n_samples, plan.file or record.file)
     ch = len(plan.channels)
     integrator = Integrator(plan.taps, ch) if plan.taps is not None else None
     bank = BandBlocks(plan.sos, ch, plan.start, plan.block)
@@ -271,7 +282,7 @@ def analyse_record(record: Record, plan: Plan, chunk: int = DEFAULT_CHUNK) -> An
         peaks.push(v, first)
         envelope.push(v)
         welch.push(v)
-    check_length(plan, n)
+    check_length(plan, n, plan.file or record.file)
     ms, overall, blocks = bank.finish()
     freqs, psd = welch.finish(plan.sample_rate)
     window_n = plan.nperseg if welch.segments else welch.buffer.shape[1]
@@ -326,7 +337,7 @@ def _half_cycle_frequency(v: np.ndarray, at: int, fs: float) -> float:
     sample ``at``: the zero-crossing frequency of the half cycle holding the peak, the
     convention of blast-vibration monitoring practice (e.g. US Bureau of Mines RI 8507,
     1980), which DIN 4150-3 and BS 7385-2 users commonly follow."""
-    i = np.flatnonzero((v[:-1] < 0) != (v[1:] < 0))
+    i = np.flatnonzero(np.sign(v[:-1]) != np.sign(v[1:]))  # zeros bound half cycles too
     t = i + v[i] / (v[i] - v[i + 1])
     before, after = t[t < at], t[t > at]
     if not before.size or not after.size:

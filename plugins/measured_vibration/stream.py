@@ -104,7 +104,7 @@ class PeakTracker:
         for c in range(v.shape[0]):
             x = v[c] if self.previous is None else np.concatenate(([self.previous[c]], v[c]))
             origin = first - (0 if self.previous is None else 1)
-            i = np.flatnonzero((x[:-1] < 0) != (x[1:] < 0))
+            i = np.flatnonzero(np.sign(x[:-1]) != np.sign(x[1:]))  # zeros bound half cycles too
             crossings = origin + i + x[i] / (x[i] - x[i + 1])  # linear interpolation
             j = int(np.argmax(np.abs(v[c])))
             if abs(v[c, j]) > self.peak[c]:
