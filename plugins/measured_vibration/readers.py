@@ -80,13 +80,36 @@ def iter_chunks(record: Record, chunk: int = DEFAULT_CHUNK) -> Iterator[tuple[in
         return
     data, _ = _open_array(record)
     scale = np.asarray(record.scale)
-    for start in range(0, data.shape[0], chunk):
-        block = np.asarray(data[start:start + chunk, list(record.columns)], dtype=np.float64)
+    columns = list(record.columns)
+    for start, raw in _array_blocks(record, data, chunk):
+        block = np.asarray(raw[:, columns], dtype=np.float64)
         if record.offset:
             block -= record.offset
         block *= scale
         check_finite(record, block, start, 0)
         yield start, block
+
+
+def _array_blocks(record: Record, data: np.ndarray, chunk: int):
+    """Row blocks of a mapped array, read with plain file reads where the rows lie contiguous
+    in the file: pages of a mapping stay resident and would count against the memory bound."""
+    offset = getattr(data, "offset", None)
+    base = getattr(data, "filename", None)
+    contiguous = data.flags.c_contiguous or data.shape[1] == 1
+    if offset is None or base is None or not contiguous:
+        for start in range(0, data.shape[0], chunk):
+            yield start, data[start:start + chunk]
+        return
+    n, width, dtype = data.shape[0], data.shape[1], data.dtype
+    del data
+    with open(record.path, "rb") as fh:
+        for start in range(0, n, chunk):
+            rows = min(chunk, n - start)
+            fh.seek(offset + start * width * dtype.itemsize)
+            raw = np.fromfile(fh, dtype=dtype, count=rows * width)
+            if raw.size != rows * width:
+                raise DataFileError(record.file, f"the file ends early, at sample {start}")
+            yield start, raw.reshape(rows, width)
 
 
 # --- WAV and npy -------------------------------------------------------------------------
