@@ -122,9 +122,10 @@ def test_filter_bank_and_spectra_agree_on_the_sample_survey():
 
 
 def test_chunks_or_array_give_the_same_second_method():
-    x = np.random.default_rng(3).standard_normal((100_000, 2))
+    x = np.random.default_rng(3).standard_normal((300 * 512 + 77, 2))
     whole = spectral_levels(x, sample_rate=512.0, acceleration=False)
     parts = spectral_levels((x[i:i + 7000] for i in range(0, x.shape[0], 7000)),
                             sample_rate=512.0, acceleration=False)
     assert np.allclose(whole.levels, parts.levels, rtol=1e-12)
-    assert np.all(whole.lines >= 0) and MIN_LINES >= 8 and TOLERANCE <= 0.05
+    # the odd tail joins the last segment: the lowest band keeps its 16 lines and more
+    assert whole.lines[0] >= MIN_LINES and TOLERANCE <= 0.05

@@ -117,11 +117,11 @@ def spectral_levels(
     """Band rms velocity of ``samples`` (samples × channels SI array, or an iterable of such
     chunks, already cut to the span the method analysed).
 
-    Without an averaging time: tapered segments (TAPER) of about 16/B_low seconds (a power of two
-    in samples; the last one shorter) tile the span; band mean square = Σ segment band
-    energies / samples. With one: each block of that length is one segment, and each band's
-    level is its maximum over the full blocks. Lines below a third of the lowest band edge are
-    dropped, as the method's drift high-pass drops them.
+    Without an averaging time: tapered segments (TAPER) of about 16/B_low seconds (a power of
+    two in samples; the last one up to twice as long) tile the span; band mean square =
+    Σ segment band energies / samples. With one: each block of that length is one segment,
+    and each band's level is its maximum over the full blocks. Lines below a third of the
+    lowest band edge are dropped, as the method's drift high-pass drops them.
     """
     centre, f1, f2 = _bands(band_low, band_high)
     fs = float(sample_rate)
@@ -141,7 +141,10 @@ def spectral_levels(
         if chunk.ndim == 1:
             chunk = chunk[:, None]
         buffer = chunk if buffer.size == 0 else np.concatenate((buffer, chunk))
-        while buffer.shape[0] >= seg:
+        # Without averaging, the tail joins the last segment (seg to 2·seg long), so that no
+        # short segment leaves a band with too few lines.
+        keep = seg if averaging_time is None else 0
+        while buffer.shape[0] >= seg + keep:
             e = _segment_energy(buffer[:seg], fs, acceleration, f1, f2, floor)
             total = e if total is None else total + e
             best = e / seg if best is None else np.maximum(best, e / seg)
