@@ -102,7 +102,7 @@ def _agree(x, fs, quantity, averaging=None):
     ("acceleration", 1024.0, 60.0, None),
     ("velocity", 200.0, 120.0, None),  # the upper band edge near 0.45·fs
     ("acceleration", 512.0, 300.0, None),
-    ("velocity", 1024.0, 60.0, 4.0),  # 4 s blocks: bands from 20 Hz have 16 lines
+    ("velocity", 1024.0, 90.0, 8.0),  # 8 s blocks: bands from 20 Hz have 32 lines
 ])
 def test_filter_bank_and_spectra_agree_on_tones_and_noise(quantity, fs, seconds, averaging):
     rng = np.random.default_rng(5)
@@ -118,14 +118,15 @@ def test_filter_bank_and_spectra_agree_on_tones_and_noise(quantity, fs, seconds,
 def test_filter_bank_and_spectra_agree_on_the_sample_survey():
     record = open_record(SAMPLE)
     x = np.concatenate([c for _, c in iter_chunks(record)])
-    assert _agree(x, record.sample_rate, "velocity") >= 3 * 14
+    # ~50 s analysed: bands from 3.15 Hz have 32 lines or more
+    assert _agree(x, record.sample_rate, "velocity") >= 30
 
 
 def test_chunks_or_array_give_the_same_second_method():
-    x = np.random.default_rng(3).standard_normal((300 * 512 + 77, 2))
+    x = np.random.default_rng(3).standard_normal((300 * 512 + 77, 2))  # 2.3 segments
     whole = spectral_levels(x, sample_rate=512.0, acceleration=False)
     parts = spectral_levels((x[i:i + 7000] for i in range(0, x.shape[0], 7000)),
                             sample_rate=512.0, acceleration=False)
     assert np.allclose(whole.levels, parts.levels, rtol=1e-12)
     # the odd tail joins the last segment: the lowest band keeps its 16 lines and more
-    assert whole.lines[0] >= MIN_LINES and TOLERANCE <= 0.05
+    assert whole.lines[0] >= 16 and TOLERANCE <= 0.05 and MIN_LINES >= 16
