@@ -5,6 +5,7 @@ and the result keys of the calc (worst channel unsuffixed, each channel suffixed
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 
 import numpy as np
@@ -24,6 +25,7 @@ __all__ = [
     "assess_bands",
     "assess_ppv",
     "band_rows",
+    "channel_key",
     "result_values",
     "worst_channel",
 ]
@@ -98,10 +100,16 @@ def result_values(analysis: Analysis, criterion: Criterion | None = None) -> dic
     out["band_levels"] = band_rows(analysis, worst)
     if len(analysis.channels) > 1:
         for i, ch in enumerate(analysis.channels):
+            suffix = channel_key(ch.channel)
             for key, value in _values(ch, assessments[i] if assessments else None).items():
-                out[f"{key}_{ch.channel}"] = value
-            out[f"band_levels_{ch.channel}"] = band_rows(analysis, i)
+                out[f"{key}_{suffix}"] = value
+            out[f"band_levels_{suffix}"] = band_rows(analysis, i)
     return out
+
+
+def channel_key(channel: str) -> str:
+    """A channel name as a result-key suffix: letters, digits and '_' ("z axis" → "z_axis")."""
+    return re.sub(r"\W+", "_", channel).strip("_") or "channel"
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)

@@ -27,6 +27,7 @@ __all__ = [
     "Plan",
     "analyse_array",
     "analyse_record",
+    "check_length",
     "integrator_taps",
     "make_plan",
 ]
