@@ -282,9 +282,9 @@ def test_criterion_checks_its_own_data():
 
 # --- a firm's own curves -----------------------------------------------------------------
 
-CSV_OK = b"""# title: Scanner floor specification (invented maker Orrel Imaging)
-# source: Orrel Imaging site planning guide, rev. C (invented)
-frequency [Hz],ORREL-MR7 [um/s],ORREL-CT2 [um/s]
+CSV_OK = b"""# title: Scanner floor specification (invented maker Veskar Imaging)
+# source: Veskar Imaging site planning guide, rev. C (invented)
+frequency [Hz],VESKAR-MR7 [um/s],VESKAR-CT2 [um/s]
 1,40,80
 8,20,40
 80,20,40
@@ -293,8 +293,8 @@ frequency [Hz],ORREL-MR7 [um/s],ORREL-CT2 [um/s]
 
 def test_read_criteria_csv():
     a, b = read_criteria_file("maker.csv", CSV_OK)
-    assert a.name == "ORREL-MR7" and b.name == "ORREL-CT2" and a.status == "user_supplied"
-    assert a.source.startswith("Orrel Imaging") and a.frequencies == (1.0, 8.0, 80.0)
+    assert a.name == "VESKAR-MR7" and b.name == "VESKAR-CT2" and a.status == "user_supplied"
+    assert a.source.startswith("Veskar Imaging") and a.frequencies == (1.0, 8.0, 80.0)
     # log-log interpolation: half way (geometrically) between 1 and 8 Hz
     assert math.isclose(float(limit_at(a, math.sqrt(8.0))), math.sqrt(40 * 20) * UM,
                         rel_tol=1e-12)

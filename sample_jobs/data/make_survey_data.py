@@ -1,6 +1,6 @@
 """Generate the sample floor-vibration survey (an invented scenario) as CSV.
 
-Imaging Suite 2 of the invented Brackenridge Clinic, floor slab beside the scanner pad: three
+Imaging Suite 2 of the invented Tarrowvale Clinic, floor slab beside the scanner pad: three
 velocity channels (x, y, z) for 60 s at 512 samples/s. Content: broadband floor noise of a few
 µm/s shaped by the slab's first mode near 17 Hz, a tone at 29.5 Hz from the invented building's
 chiller CH-3 (strongest vertically), and footfall transients of two walking passes along the
