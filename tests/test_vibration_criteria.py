@@ -298,7 +298,7 @@ def test_read_criteria_csv():
     # log-log interpolation: half way (geometrically) between 1 and 8 Hz
     assert math.isclose(float(limit_at(a, math.sqrt(8.0))), math.sqrt(40 * 20) * UM,
                         rel_tol=1e-12)
-    assert lookup("orrel-ct2", extra=(a, b)) is b
+    assert lookup("veskar-ct2", extra=(a, b)) is b
 
 
 def test_read_criteria_toml():
