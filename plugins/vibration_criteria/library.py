@@ -65,6 +65,8 @@ class Criterion:
     ``interpolation`` between points and held at its end values outside them; a criterion with
     one value and no frequencies is frequency-independent. A zone criterion (``zones`` set)
     has ascending boundary ``values`` and one more zone label than boundaries.
+    ``title``, ``source`` and ``notes`` are written to be printed; ``status`` and
+    ``status_note`` say how well the values are known, for maintainers and tests only.
     """
 
     name: str
