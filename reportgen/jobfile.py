@@ -255,7 +255,7 @@ def _depth_where(path: tuple[str, ...]) -> tuple[str, str]:
         if part.startswith("["):
             break
         keys.append(part)
-    return calc, ".".join(keys)
+    return calc, ".".join(keys[:2])  # the job's own field, not the keys inside the value
 
 
 _TOO_DEEP = f"values are nested too deeply (the limit is {MAX_DEPTH} levels of arrays and tables)"
