@@ -76,9 +76,10 @@ class ForcedResponse(CalcType):
     inputs = (
         InputSpec(name="mass", symbol="m",
                   description="Vibrating mass (for an unbalance: the whole machine, rotor"
-                              " included)", dimension="mass", positive=True, maximum=1e8),
+                              " included)", dimension="mass", positive=True, minimum=1e-3,
+                  maximum=1e8),
         InputSpec(name="stiffness", symbol="k", description="Total support stiffness",
-                  dimension="stiffness", positive=True, maximum=1e13),
+                  dimension="stiffness", positive=True, minimum=1.0, maximum=1e13),
         *damping_inputs(),
         InputSpec(name="force_amplitude", symbol="F_0",
                   description="Amplitude of the applied harmonic force", dimension="force",

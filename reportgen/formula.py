@@ -15,7 +15,8 @@ from functools import lru_cache
 
 from .units import format_number
 
-__all__ = ["FormulaError", "evaluate", "names_in", "symbol_latex", "to_latex"]
+__all__ = ["FormulaError", "evaluate", "is_scientific", "names_in", "number_latex",
+           "symbol_latex", "to_latex"]
 
 CONSTANTS = {"pi": math.pi}
 FUNCTIONS: dict[str, Callable[..., float]] = {
@@ -147,10 +148,10 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
 
     def tex(node: ast.expr) -> str:
         if isinstance(node, ast.Constant):
-            return _num(float(node.value), digits)  # type: ignore[arg-type]
+            return number_latex(float(node.value), digits)  # type: ignore[arg-type]
         if isinstance(node, ast.Name):
             if values is not None and node.id in values:
-                text = _num(float(values[node.id]), digits)
+                text = number_latex(float(values[node.id]), digits)
                 return paren(text) if text.startswith("-") else text
             if node.id == "pi":
                 return r"\pi"
@@ -167,7 +168,10 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
             left, right = tex(node.left), tex(node.right)
             p = _PREC[type(op)]
             if isinstance(op, ast.Pow):
-                if _prec(node.left) <= 5 or left.startswith("-"):
+                # a number in powers of ten keeps its own exponent: (1.27 × 10⁻⁵)², never
+                # 1.27 × 10⁻⁵², which reads as ten to the power −52
+                if (_prec(node.left) <= 5 or left.startswith("-")
+                        or (is_scientific(left) and not left.startswith(r"\left("))):
                     left = paren(left)
                 return "{" + left + "}^{" + right + "}"
             if _prec(node.left) < p:
@@ -201,7 +205,13 @@ def _is_fraction(node: ast.expr) -> bool:
     return isinstance(node, ast.BinOp) and isinstance(node.op, ast.Div)
 
 
-def _num(value: float, digits: int) -> str:
+def is_scientific(latex: str) -> bool:
+    """Whether a printed number is in powers of ten (it then needs brackets under a power)."""
+    return r"\times 10^{" in latex
+
+
+def number_latex(value: float, digits: int = 6) -> str:
+    """A number as LaTeX: plain where readable, else ``m \\times 10^{e}``."""
     text = format_number(value, digits)
     if "e" in text:
         mant, exp = text.split("e")
