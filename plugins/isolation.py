@@ -32,6 +32,7 @@ from reportgen import (
     VerificationRow,
     hookimpl,
 )
+from reportgen.calc import linear_validity_check
 from reportgen.units import STANDARD_GRAVITY, format_number, table_display
 
 __version__ = "0.2.0"
@@ -121,7 +122,11 @@ def mount_loads(weight: float, positions: Sequence[Sequence[float]],
     dx, dy = pts[:, 0] - xm, pts[:, 1] - ym
     sxx, syy, sxy = _second_moments(pts)
     det = sxx * syy - sxy**2
-    if n < 3 or det <= 1e-12 * (sxx + syy) ** 2:
+    if n < 3:
+        raise ValueError(f"{'one mount' if n == 1 else 'two mounts'} cannot carry an"
+                         " off-centre load (no resistance to tilting); give at least three"
+                         " positions, or leave out mount_positions for equal sharing")
+    if det <= 1e-12 * (sxx + syy) ** 2:
         raise ValueError("the mount positions are collinear: they cannot carry a moment")
     ex, ey = cg[0] - xm, cg[1] - ym
     b = weight * (ex * syy - ey * sxy) / det
@@ -283,13 +288,20 @@ class Isolation(CalcType):
                 except ValueError as exc:
                     problems.append(("inputs.mount_positions", str(exc)))
                 else:
-                    lifted = [(i + 1, p) for i, p in enumerate(loads) if p <= 0.0]
+                    # a load within round-off of zero (cg on the edge of the region) is 0
+                    zero = 1e-9 * inputs["mass"] * STANDARD_GRAVITY
+                    lifted = [(i + 1, p if abs(p) > zero else 0.0)
+                              for i, p in enumerate(loads) if p <= zero]
                     if lifted:
-                        which = ", ".join(f"mount {i} would carry {p / 1000:.3g} kN" for i, p
-                                          in lifted)
-                        problems.append(("inputs.cg_x", "the centre of gravity lies outside"
+                        which = ", ".join(
+                            f"mount {i} would be unloaded (0 kN)" if p == 0.0 else
+                            f"mount {i} would carry {p / 1000:.3g} kN (uplift/tension)"
+                            for i, p in lifted)
+                        where = ("on the edge of" if all(p == 0.0 for _, p in lifted)
+                                 else "outside")
+                        problems.append(("inputs.cg_x", f"the centre of gravity lies {where}"
                                          " the region the mounts can carry in compression:"
-                                         f" {which} (uplift). Check cg_x, cg_y and"
+                                         f" {which}. Check cg_x, cg_y and"
                                          " mount_positions, or add or move mounts"))
         if not problems:
             f = forcing_frequency(inputs)
@@ -454,6 +466,7 @@ class Isolation(CalcType):
                     note=f"per-mount natural frequencies {format_number(fn_lo, 3)} to"
                          f" {format_number(fn_hi, 3)} Hz; the machine's vertical mode is"
                          f" {format_number(fn, 4)} Hz")
+        linear_validity_check(s, t, "transmissibility T")
         if "max_static_deflection" in crit:
             s.check("max-static-deflection", "Largest mount static deflection within the"
                     " limit", value=dmax, limit=crit["max_static_deflection"],

@@ -90,9 +90,9 @@ def evaluate(expression: str, operands: Mapping[str, float]) -> float:
             a, b = ev(node.left), ev(node.right)
             op = node.op
             if isinstance(op, ast.Add):
-                return a + b
+                return _sum(a, b)
             if isinstance(op, ast.Sub):
-                return a - b
+                return _sum(a, -b)
             if isinstance(op, ast.Mult):
                 return a * b
             if isinstance(op, ast.Div):
@@ -108,6 +108,19 @@ def evaluate(expression: str, operands: Mapping[str, float]) -> float:
     if isinstance(value, complex) or not math.isfinite(value):
         raise FormulaError(f"formula {expression!r} gives a non-finite value")
     return value
+
+
+#: A sum within this many units in the last place of its larger term is round-off.
+ROUNDOFF_ULPS = 4
+
+
+def _sum(a: float, b: float) -> float:
+    """a + b, or exactly 0 where the terms cancel to within round-off: 1 − T at T = 1
+    prints 0, not −4.441 × 10⁻¹⁶ (the digits below a few ulps carry no information)."""
+    total = a + b
+    if abs(total) <= ROUNDOFF_ULPS * math.ulp(max(abs(a), abs(b))):
+        return 0.0
+    return total
 
 
 def symbol_latex(name: str) -> str:

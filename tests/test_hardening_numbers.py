@@ -189,3 +189,92 @@ def test_phase_angle_below_1e_minus_4_degrees_builds(tmp_path):
                 mass="100 kg")
     code, _, err = run(["build", str(path), "--out", str(tmp_path / "out"), "--jobs", "1"])
     assert code in (0, 1), err
+
+
+# ---------------------------------------------------------------- on the limit, round-off
+
+
+def _checks(doc) -> dict:
+    return {c.id: c for s in doc.sections for c in s.checks}
+
+
+def _results(doc) -> dict:
+    return {r.key: r.quantity.value for s in doc.sections for r in s.results}
+
+
+@pytest.mark.parametrize("fn", ["10 Hz", "7 Hz", "3.3 Hz", "12.5 Hz", "1 Hz"])
+@pytest.mark.parametrize("zeta", [0.0, 0.05])
+def test_isolation_at_exactly_root_two(tmp_path, fn, zeta):
+    """T(√2, ζ) = 1 for any ζ (Thomson & Dahleh, §3.5; Rao §9.10): efficiency is exactly 0
+    and "r above √2" fails for every rounding of r, with the reason stated."""
+    f = float(fn.split()[0]) * math.sqrt(2)
+    doc = _compute(tmp_path, "isolation", speed=None, stiffness=None, frequency=f"{f!r} Hz",
+                   natural_frequency=fn, damping_ratio=zeta)
+    assert _results(doc)["isolation_efficiency"] == 0.0  # not ±4.441e-16
+    check = _checks(doc)["isolation-exists"]
+    assert check.status == "fail" and "on the limit" in check.note
+
+
+def test_on_limit_rule_for_every_comparison():
+    from reportgen.calc import Sheet
+
+    s = Sheet()
+    limit = math.sqrt(2)
+    for value in (limit, limit * (1 + 4e-16), limit * (1 - 4e-16)):
+        # printed alike, so the status cannot depend on the last bit
+        assert s.check("a", "a", value=value, limit=limit, comparison=">").status == "fail"
+        assert s.check("b", "b", value=value, limit=limit, comparison="<").status == "fail"
+        assert s.check("c", "c", value=value, limit=limit, comparison=">=").status == "pass"
+        assert s.check("d", "d", value=value, limit=limit, comparison="<=").status == "pass"
+    # beyond 1 part in 10⁹ the ordinary comparison decides
+    assert s.check("e", "e", value=limit * (1 + 1e-8), limit=limit,
+                   comparison=">").status == "pass"
+    assert "on the limit" not in s.check("f", "f", value=2.0, limit=1.0, comparison=">").note
+
+
+def test_cancellation_below_round_off_is_zero():
+    from reportgen.formula import evaluate
+
+    t = math.sqrt(2) ** 2 / 2  # 1.0000000000000002
+    assert evaluate("1 - T", {"T": t}) == 0.0
+    assert evaluate("a + b", {"a": 1e-3, "b": -1e-3 * (1 + 2e-16)}) == 0.0
+    assert evaluate("1 - T", {"T": 1 - 1e-12}) == pytest.approx(1e-12, rel=1e-3)
+
+
+@pytest.mark.parametrize("offset", [2e-6, -5e-6, 1e-3])
+def test_undamped_near_resonance_flags_the_linear_model(tmp_path, offset):
+    """Undamped steady state X = X_st/|1 − r²| (Thomson & Dahleh §3.1): 10⁻⁶ from resonance
+    it is about 2.5·10⁵·X_st. The package must say the linear model is outside its validity."""
+    fn = math.sqrt(350e3 / 1200) / (2 * math.pi)
+    f = fn * (1 + offset)
+    doc = _compute(tmp_path, "forced_response", damping_ratio=0.0, frequency=f"{f!r} Hz")
+    amp = _results(doc)["dynamic_amplification"]
+    assert amp == pytest.approx(1 / abs(1 - (1 + offset) ** 2), rel=1e-4)
+    check = _checks(doc)["linear-validity"]
+    assert check.status == "fail" and "outside its validity" in check.note
+
+
+def test_ordinary_forced_response_has_no_validity_flag(tmp_path):
+    assert "linear-validity" not in _checks(_compute(tmp_path, "forced_response"))
+
+
+def test_one_mount_with_a_position_says_what_is_wrong(tmp_path):
+    path = _job(tmp_path, "isolation", mounts=1, cg_x="0 m", cg_y="0 m",
+                mount_positions=[["0 m", "0 m"]])
+    code, _, err = run(["check", str(path)])
+    assert code == 2 and "one mount cannot carry an off-centre load" in err, err
+    assert "collinear" not in err
+
+
+def test_zero_mount_load_is_unloaded_not_uplift(tmp_path):
+    # cg on the line through mounts 2 and 3 of a triangle: mount 1 carries nothing (statics)
+    pts = [["0 m", "0 m"], ["2 m", "0 m"], ["2 m", "1 m"]]
+    path = _job(tmp_path, "isolation", mounts=3, cg_x="2 m", cg_y="0.5 m",
+                mount_positions=pts)
+    code, _, err = run(["check", str(path)])
+    assert code == 2 and "mount 1 would be unloaded" in err, err
+    assert "uplift" not in err
+    path = _job(tmp_path, "isolation", mounts=3, cg_x="2.5 m", cg_y="0.5 m",
+                mount_positions=pts)
+    code, _, err = run(["check", str(path)])
+    assert code == 2 and "uplift/tension" in err, err
