@@ -179,3 +179,48 @@ def test_xmp_is_well_formed_for_the_widest_valid_text(tmp_path):
         meta = pdf.open_metadata()  # parses the XMP packet as XML
         assert meta.pdfa_status == "3B"
         assert WIDE["title"] in str(meta.get("dc:title"))
+
+
+# ---------------------------------------------------------------- self-check of valid text
+
+SCRIPT_TITLES = ["משאבה P1 על קפיצים", "مضخة P1 على نوابض", "Pump ﬁve ﬂow ﬀ", "Pump 12 שלב 3 א",
+                 "Chiller CH1 — Ω 振動 🔧 שלב א"]
+
+
+def test_right_to_left_and_ligature_titles_pass_the_self_check(tmp_path):
+    """A correct PDF draws right-to-left runs in visual order and may read a ligature back
+    as its letters (Unicode UAX #9 bidi algorithm; NFKC, UAX #15): the self-check accepts
+    both, and still refuses a title that is not on the page."""
+    import dataclasses
+
+    from reportgen.build import compute_document
+    from reportgen.errors import RenderError
+    from reportgen.jobfile import load_job
+    from reportgen.plugins import get_plugin_manager
+    from reportgen.selfcheck import self_check
+
+    calcs = [{**FREE, "id": f"calc-{i}", "title": t} for i, t in enumerate(SCRIPT_TITLES)]
+    path = write_job(tmp_path, job_text(calcs=calcs))
+    out = tmp_path / "out"
+    code, _, err = run(["build", str(path), "--out", str(out), "--jobs", "1"])
+    assert code == 0, err
+    pdf = (out / "QEP-2417-V-301-A.pdf").read_bytes()
+    plugins = get_plugin_manager()
+    doc = compute_document(load_job(path, plugins), plugins)
+    self_check(pdf, doc)
+    for wrong in ("משאבה P2 על קפיצים", "مضخة P1 على نوابص", "Pump ﬁve ﬂows"):
+        bad = dataclasses.replace(doc, sections=(
+            dataclasses.replace(doc.sections[0], title=wrong),) + tuple(doc.sections[1:]))
+        with pytest.raises(RenderError, match="section title"):
+            self_check(pdf, bad)
+
+
+def test_shown_rule():
+    from reportgen.selfcheck import shown
+
+    page = "Contents1Pumpא בלש2הבאשמP1םיציפקלע".replace(" ", "")
+    assert shown(page, "Pumpשלבא")
+    assert shown(page, "משאבהP1עלקפיצים")
+    assert not shown(page, "משאבהP2עלקפיצים")  # the left-to-right part differs
+    assert not shown(page, "משאבהP1עלקפיץ")  # letters missing
+    assert shown("xxלאyy", "אל") and shown("xxאלyy", "אל")
