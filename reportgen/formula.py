@@ -159,13 +159,18 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
     def paren(s: str) -> str:
         return r"\left(" + s + r"\right)"
 
+    def paren_number(s: str) -> str:
+        # fixed-size brackets: a stretched one is drawn as an outline, absent from the
+        # PDF's text, which would then read 1.27×10⁻⁵² for (1.27×10⁻⁵)²
+        return "(" + s + ")" if is_scientific(s) else paren(s)
+
     def tex(node: ast.expr) -> str:
         if isinstance(node, ast.Constant):
             return number_latex(float(node.value), digits)  # type: ignore[arg-type]
         if isinstance(node, ast.Name):
             if values is not None and node.id in values:
                 text = number_latex(float(values[node.id]), digits)
-                return paren(text) if text.startswith("-") else text
+                return paren_number(text) if text.startswith("-") else text
             if node.id == "pi":
                 return r"\pi"
             return symbols.get(node.id) or symbol_latex(node.id)
@@ -183,8 +188,9 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
             if isinstance(op, ast.Pow):
                 # a number in powers of ten keeps its own exponent: (1.27 × 10⁻⁵)², never
                 # 1.27 × 10⁻⁵², which reads as ten to the power −52
-                if (_prec(node.left) <= 5 or left.startswith("-")
-                        or (is_scientific(left) and not left.startswith(r"\left("))):
+                if is_scientific(left) and not left.startswith(("(", r"\left(")):
+                    left = paren_number(left)
+                elif _prec(node.left) <= 5 or left.startswith("-"):
                     left = paren(left)
                 return "{" + left + "}^{" + right + "}"
             if _prec(node.left) < p:

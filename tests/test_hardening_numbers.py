@@ -162,7 +162,7 @@ def test_scientific_operand_under_a_power_is_bracketed(value, expression):
     latex = to_latex(expression, {"a": value, "b": 0.00127})
     mant = f"{value:.6g}".split("e")[0]
     # the whole number is the base: (1.27006 × 10^{-5})², never 1.27006 × 10^{-5}²
-    assert re.search(r"\\left\(" + re.escape(mant) + r" \\times 10\^\{-?\d+\}\\right\)\}\^",
+    assert re.search(r"\(" + re.escape(mant) + r" \\times 10\^\{-?\d+\}\)\}\^",
                      latex), latex
     assert latex_svg(latex)  # ziamath typesets it
 
