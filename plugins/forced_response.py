@@ -34,6 +34,7 @@ from reportgen import (
     VerificationRow,
     hookimpl,
 )
+from reportgen.calc import linear_validity_check
 from reportgen.units import format_number, table_display
 
 __version__ = "0.1.0"
@@ -76,9 +77,10 @@ class ForcedResponse(CalcType):
     inputs = (
         InputSpec(name="mass", symbol="m",
                   description="Vibrating mass (for an unbalance: the whole machine, rotor"
-                              " included)", dimension="mass", positive=True, maximum=1e8),
+                              " included)", dimension="mass", positive=True, minimum=1e-3,
+                  maximum=1e8),
         InputSpec(name="stiffness", symbol="k", description="Total support stiffness",
-                  dimension="stiffness", positive=True, maximum=1e13),
+                  dimension="stiffness", positive=True, minimum=1.0, maximum=1e13),
         *damping_inputs(),
         InputSpec(name="force_amplitude", symbol="F_0",
                   description="Amplitude of the applied harmonic force", dimension="force",
@@ -336,6 +338,7 @@ class ForcedResponse(CalcType):
             " Resonance margin: this package uses |f − f_n|/f_n; practice also uses"
             f" |f − f_n|/f (here {margin_f:.4g}), shown for information only. The resonance"
             f" band is f_n·(1 ± {min_margin:g}) = {band[0]:.4g} to {band[1]:.4g} Hz.")))
+        linear_validity_check(s, dyn, "dynamic amplification D")
         s.check("resonance-margin",
                 "Resonance margin |f − f_n|/f_n not below the minimum (forcing frequency"
                 " outside the resonance band)",

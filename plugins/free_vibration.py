@@ -28,7 +28,7 @@ from reportgen import (
     VerificationRow,
     hookimpl,
 )
-from reportgen.units import STANDARD_GRAVITY
+from reportgen.units import STANDARD_GRAVITY, format_number
 
 __version__ = "0.1.0"
 
@@ -61,9 +61,9 @@ class FreeVibration(CalcType):
                " mass about its static equilibrium, modelled as m·x'' + c·x' + k·x = 0.")
     inputs = (
         InputSpec(name="mass", symbol="m", description="Vibrating mass", dimension="mass",
-                  positive=True, maximum=1e8),
+                  positive=True, minimum=1e-3, maximum=1e8),
         InputSpec(name="stiffness", symbol="k", description="Total spring stiffness",
-                  dimension="stiffness", positive=True, maximum=1e13),
+                  dimension="stiffness", positive=True, minimum=1.0, maximum=1e13),
         *damping_inputs(),
         InputSpec(name="initial_displacement", symbol="x_0",
                   description="Initial displacement from equilibrium", dimension="length",
@@ -114,6 +114,13 @@ class FreeVibration(CalcType):
                                  f"duration covers {inputs['duration'] / period:.0f} natural"
                                  " periods; the limit is 1000 (the plot would be unreadable"
                                  " and the time history too large)"))
+        # below a picometre (per second) a start is no motion a sensor or a structure
+        # shows, and the closed form's squares of it underflow
+        for key, unit in (("initial_displacement", "m"), ("initial_velocity", "m/s")):
+            if 0.0 < abs(inputs.get(key, 0.0)) < TINY_START:
+                problems.append((f"inputs.{key}", f"{inputs[key]:g} {unit} is below"
+                                 f" {TINY_START:g} {unit}: give 0 for no initial {key[8:]},"
+                                 " or a value a structure can show"))
         lo, hi = criteria.get("min_natural_frequency"), criteria.get("max_natural_frequency")
         if lo is not None and hi is not None and lo >= hi:
             problems.append(("criteria.max_natural_frequency",
@@ -280,22 +287,20 @@ class FreeVibration(CalcType):
         _, x_of_t, _ = self._response(s, wn, zeta, x0, v0)
         duration = p.get("duration") or _default_duration(wn, zeta)
         t_eval = np.linspace(0, duration, 801)
-        sol = solve_ivp(lambda t, y: [y[1], -(c * y[1] + k * y[0]) / m], (0, duration),
-                        [x0, v0], method="DOP853", rtol=1e-11, atol=1e-14 * max(abs(x0), 1e-3),
-                        t_eval=t_eval)
+        x_num, how = _numerical_history(t_eval, wn, zeta, x0, v0)
         closed = x_of_t(t_eval)
         scale = float(np.max(np.abs(closed)))
         for frac in (0.1, 0.5, 1.0):
             i = int(round(frac * (len(t_eval) - 1)))
             rows.append(VerificationRow(
                 quantity=f"x(t) at t = {t_eval[i]:.4g} s", closed_form=float(closed[i]),
-                independent=float(sol.y[0][i]), tolerance=1e-6, abs_tolerance=1e-7 * scale,
-                unit="length",
-                method="scipy.integrate.solve_ivp (DOP853) of m·x'' + c·x' + k·x = 0" + note))
+                independent=float(x_num[i]), tolerance=1e-6, abs_tolerance=1e-7 * scale,
+                unit="length", method=how + note))
         if 0 < zeta < 0.5:
             # decay: logarithmic decrement from successive numerical peaks
-            td = 2 * math.pi / (wn * math.sqrt(1 - zeta**2))
-            fine = solve_ivp(lambda t, y: [y[1], -(c * y[1] + k * y[0]) / m], (0, 3.2 * td),
+            # in τ = ω_n·t, so the tolerances below do not depend on the inputs' scale
+            td = 2 * math.pi / math.sqrt(1 - zeta**2)
+            fine = solve_ivp(lambda t, y: [y[1], -2.0 * zeta * y[1] - y[0]], (0, 3.2 * td),
                              [1.0, 0.0], method="DOP853", rtol=1e-12, atol=1e-15,
                              dense_output=True)
             from scipy.optimize import brentq
@@ -312,9 +317,45 @@ class FreeVibration(CalcType):
                 independent=float(math.log(x1 / x2)), tolerance=1e-6,
                 method="ln of two successive peaks of the integrated response"))
             rows.append(VerificationRow(
-                quantity="damped period", closed_form=td, independent=peaks[1] - peaks[0],
+                quantity="damped period", closed_form=2 * math.pi / (wn * math.sqrt(1 - zeta**2)),
+                independent=(peaks[1] - peaks[0]) / wn,
                 tolerance=1e-6, unit="time", method="time between successive integrated peaks"))
         return rows
+
+
+#: Smallest non-zero initial displacement (m) or velocity (m/s) accepted.
+TINY_START = 1e-12
+#: Most natural periods (or decay times) a time integration may span; beyond it the
+#: verification's cost would grow with the input's scale.
+MAX_CYCLES = 100
+
+
+def _numerical_history(t: np.ndarray, wn: float, zeta: float, x0: float, v0: float
+                       ) -> tuple[np.ndarray, str]:
+    """x(t) of m·x'' + c·x' + k·x = 0 by a route independent of the closed form, and how.
+
+    Dimensionless: τ = ω_n·t and x = s·u (s the initial amplitude) give
+    u'' + 2ζu' + u = 0, so the integrator's step count and tolerances depend on ζ and the
+    span in natural periods only, never on the units or magnitude of the inputs. A span
+    of more than :data:`MAX_CYCLES` is propagated by the matrix exponential instead.
+    """
+    from scipy.integrate import solve_ivp
+    from scipy.linalg import expm
+
+    s = max(abs(x0), abs(v0) / wn) or 1.0
+    tau = t * wn
+    u0 = [x0 / s, v0 / (s * wn)]
+    a = np.array([[0.0, 1.0], [-1.0, -2.0 * zeta]])
+    cycles = tau[-1] / (2 * math.pi) * max(1.0, 2.0 * zeta)
+    if cycles <= MAX_CYCLES:
+        sol = solve_ivp(lambda _t, y: a @ y, (0.0, tau[-1]), u0, method="DOP853",
+                        rtol=1e-11, atol=1e-14, t_eval=tau)
+        if sol.success and sol.y.shape[1] == len(tau):
+            return s * sol.y[0], ("scipy.integrate.solve_ivp (DOP853) of m·x'' + c·x' + k·x"
+                                  " = 0 in dimensionless time τ = ω_n·t")
+    x = np.array([s * (expm(a * ti) @ u0)[0] for ti in tau])
+    return x, ("scipy.linalg.expm of the dimensionless state matrix, x(τ) = e^(Aτ)·x(0)"
+               f" (a time integration over {format_number(cycles, 3)} periods was not run)")
 
 
 def _default_duration(wn: float, zeta: float) -> float:

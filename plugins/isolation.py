@@ -32,6 +32,7 @@ from reportgen import (
     VerificationRow,
     hookimpl,
 )
+from reportgen.calc import linear_validity_check
 from reportgen.units import STANDARD_GRAVITY, format_number, table_display
 
 __version__ = "0.2.0"
@@ -121,7 +122,11 @@ def mount_loads(weight: float, positions: Sequence[Sequence[float]],
     dx, dy = pts[:, 0] - xm, pts[:, 1] - ym
     sxx, syy, sxy = _second_moments(pts)
     det = sxx * syy - sxy**2
-    if n < 3 or det <= 1e-12 * (sxx + syy) ** 2:
+    if n < 3:
+        raise ValueError(f"{'one mount' if n == 1 else 'two mounts'} cannot carry an"
+                         " off-centre load (no resistance to tilting); give at least three"
+                         " positions, or leave out mount_positions for equal sharing")
+    if det <= 1e-12 * (sxx + syy) ** 2:
         raise ValueError("the mount positions are collinear: they cannot carry a moment")
     ex, ey = cg[0] - xm, cg[1] - ym
     b = weight * (ex * syy - ey * sxy) / det
@@ -174,7 +179,7 @@ class Isolation(CalcType):
                " needs, and find the load and static deflection of each mount.")
     inputs = (
         InputSpec(name="mass", symbol="m", description="Total supported mass (machine and base)",
-                  dimension="mass", positive=True, maximum=1e7),
+                  dimension="mass", positive=True, minimum=1e-3, maximum=1e7),
         InputSpec(name="speed", symbol="N", description="Running speed of the dominant"
                   " excitation (1500 rpm = 25 Hz)", dimension="frequency", required=False,
                   positive=True, maximum=1e4),
@@ -184,7 +189,7 @@ class Isolation(CalcType):
         InputSpec(name="mounts", symbol="n", description="Number of mounts", kind="integer",
                   default=4, minimum=1, maximum=64),
         InputSpec(name="stiffness", symbol="k", description="Total vertical stiffness of the"
-                  " mounts", dimension="stiffness", required=False, positive=True,
+                  " mounts", dimension="stiffness", required=False, positive=True, minimum=1.0,
                   maximum=1e12),
         InputSpec(name="stiffness_per_mount", symbol="k_m", description="Vertical stiffness"
                   " of each mount", dimension="stiffness", required=False, positive=True,
@@ -283,13 +288,20 @@ class Isolation(CalcType):
                 except ValueError as exc:
                     problems.append(("inputs.mount_positions", str(exc)))
                 else:
-                    lifted = [(i + 1, p) for i, p in enumerate(loads) if p <= 0.0]
+                    # a load within round-off of zero (cg on the edge of the region) is 0
+                    zero = 1e-9 * inputs["mass"] * STANDARD_GRAVITY
+                    lifted = [(i + 1, p if abs(p) > zero else 0.0)
+                              for i, p in enumerate(loads) if p <= zero]
                     if lifted:
-                        which = ", ".join(f"mount {i} would carry {p / 1000:.3g} kN" for i, p
-                                          in lifted)
-                        problems.append(("inputs.cg_x", "the centre of gravity lies outside"
+                        which = ", ".join(
+                            f"mount {i} would be unloaded (0 kN)" if p == 0.0 else
+                            f"mount {i} would carry {p / 1000:.3g} kN (uplift/tension)"
+                            for i, p in lifted)
+                        where = ("on the edge of" if all(p == 0.0 for _, p in lifted)
+                                 else "outside")
+                        problems.append(("inputs.cg_x", f"the centre of gravity lies {where}"
                                          " the region the mounts can carry in compression:"
-                                         f" {which} (uplift). Check cg_x, cg_y and"
+                                         f" {which}. Check cg_x, cg_y and"
                                          " mount_positions, or add or move mounts"))
         if not problems:
             f = forcing_frequency(inputs)
@@ -454,6 +466,7 @@ class Isolation(CalcType):
                     note=f"per-mount natural frequencies {format_number(fn_lo, 3)} to"
                          f" {format_number(fn_hi, 3)} Hz; the machine's vertical mode is"
                          f" {format_number(fn, 4)} Hz")
+        linear_validity_check(s, t, "transmissibility T")
         if "max_static_deflection" in crit:
             s.check("max-static-deflection", "Largest mount static deflection within the"
                     " limit", value=dmax, limit=crit["max_static_deflection"],
@@ -768,13 +781,24 @@ class Isolation(CalcType):
             quantity="transmissibility (force)", closed_form=res["transmissibility"],
             independent=t_ss, tolerance=1e-9, method="state space of m·x'' + c·x' + k·x = F"
             " with output k·x + c·x' (force on the floor): scipy.signal.ss2tf, freqs"))
-        rows.append(VerificationRow(
-            quantity="transmissibility (time integration)",
-            closed_form=res["transmissibility"], independent=_integrated_transmissibility(
-                m, c, k, w), tolerance=1e-6,
-            method="scipy.integrate.solve_ivp (DOP853) from rest under F = sin ωt; the"
-            " steady amplitude of k·x + c·x' separated from the start-up transient by least"
-            " squares on the forcing harmonic and the free modes"))
+        r = w / math.sqrt(k / m)
+        integrated = _integrated_transmissibility(zeta, r)
+        if integrated is not None:
+            rows.append(VerificationRow(
+                quantity="transmissibility (time integration)",
+                closed_form=res["transmissibility"], independent=integrated, tolerance=1e-6,
+                method="scipy.integrate.solve_ivp (DOP853) from rest under F = sin ωt, in"
+                " dimensionless time τ = ω_n·t; the steady amplitude of k·x + c·x' separated"
+                " from the start-up transient by least squares on the forcing harmonic and"
+                " the free modes"))
+        else:
+            rows.append(VerificationRow(
+                quantity="transmissibility (state-space resolvent)",
+                closed_form=res["transmissibility"], independent=_resolvent_transmissibility(
+                    zeta, r), tolerance=1e-9,
+                method=f"time integration not run: at r = {format_number(r, 4)} it would"
+                " span more than"f" {MAX_CYCLES} cycles; instead |C·(j·r·I − A)⁻¹·B| of the"
+                " dimensionless state-space model (numpy.linalg.solve)"))
         # the required mounts: re-evaluate T at the root, and the root by the quadratic in r²
         t_target = 1.0 - ctx.criteria["min_efficiency"]
         k_req = res["required_stiffness_per_mount"] * n
@@ -806,30 +830,57 @@ class Isolation(CalcType):
         return rows
 
 
-def _integrated_transmissibility(m: float, c: float, k: float, w: float) -> float:
-    """|F_T|/F_0 in steady state from a time integration started at rest."""
+#: Most oscillation cycles (of the forcing or of the free motion, whichever is faster) a
+#: time integration may span: keeps the verification's cost bounded for any input scale.
+MAX_CYCLES = 100
+
+
+def _integration_cycles(zeta: float, r: float) -> float:
+    """Cycles of the fastest motion over the integration span (12 forcing periods and at
+    least 4 natural periods), in τ = ω_n·t: a function of ζ and r only."""
+    return max(12.0 / r, 4.0) * max(r, 1.0, 2.0 * zeta)
+
+
+def _integrated_transmissibility(zeta: float, r: float) -> float | None:
+    """|F_T|/F_0 in steady state from a time integration started at rest, or None when the
+    span would exceed :data:`MAX_CYCLES` (r far from 1).
+
+    Dimensionless: x = (F_0/k)·u and τ = ω_n·t give u'' + 2ζu' + u = sin(rτ), and the force
+    on the floor k·x + c·x' is F_0·(u + 2ζu'), so the step count depends on ζ and r only.
+    """
     from scipy.integrate import solve_ivp
 
-    lam = np.linalg.eigvals(np.array([[0.0, 1.0], [-k / m, -c / m]]))
-    wn = math.sqrt(k / m)
-    t_end = max(12 * 2 * math.pi / w, 4 * 2 * math.pi / wn)
-    npts = int(min(max(60 * t_end * max(w, wn) / (2 * math.pi), 2000), 20000))
+    if _integration_cycles(zeta, r) > MAX_CYCLES:
+        return None
+    lam = np.linalg.eigvals(np.array([[0.0, 1.0], [-1.0, -2.0 * zeta]]))
+    t_end = max(12 * 2 * math.pi / r, 4 * 2 * math.pi)
+    npts = int(min(max(60 * t_end * max(r, 1.0) / (2 * math.pi), 2000), 20000))
     t = np.linspace(0.0, t_end, npts)
-    sol = solve_ivp(lambda _t, y: [y[1], (math.sin(w * _t) - c * y[1] - k * y[0]) / m],
-                    (0.0, t_end), [0.0, 0.0], method="DOP853", rtol=1e-10,
-                    atol=1e-13 / k, t_eval=t)
+    sol = solve_ivp(lambda _t, y: [y[1], math.sin(r * _t) - 2.0 * zeta * y[1] - y[0]],
+                    (0.0, t_end), [0.0, 0.0], method="DOP853", rtol=1e-10, atol=1e-13,
+                    t_eval=t)
+    if not sol.success or sol.y.shape[1] != len(t):
+        return None
     x = sol.y[0]
-    cols = [np.cos(w * t), np.sin(w * t)]
-    if abs(lam[0].imag) > 1e-9 * wn:
+    cols = [np.cos(r * t), np.sin(r * t)]
+    if abs(lam[0].imag) > 1e-9:
         sigma, wd = lam[0].real, abs(lam[0].imag)
         cols += [np.exp(sigma * t) * np.cos(wd * t), np.exp(sigma * t) * np.sin(wd * t)]
-    elif abs(lam[0] - lam[1]) > 1e-6 * wn:
+    elif abs(lam[0] - lam[1]) > 1e-6:
         cols += [np.exp(lam[0].real * t), np.exp(lam[1].real * t)]
     else:
         cols += [np.exp(lam[0].real * t), t * np.exp(lam[0].real * t)]
     coef = np.linalg.lstsq(np.column_stack(cols), x, rcond=None)[0]
-    amp_x = math.hypot(coef[0], coef[1])
-    return amp_x * math.hypot(k, c * w)
+    amp_u = math.hypot(coef[0], coef[1])
+    return amp_u * math.hypot(1.0, 2.0 * zeta * r)
+
+
+def _resolvent_transmissibility(zeta: float, r: float) -> float:
+    """|C·(j·r·I − A)⁻¹·B| of u'' + 2ζu' + u = f with output u + 2ζu' (the floor force)."""
+    a = np.array([[0.0, 1.0], [-1.0, -2.0 * zeta]], dtype=complex)
+    b = np.array([0.0, 1.0], dtype=complex)
+    state = np.linalg.solve(1j * r * np.eye(2) - a, b)
+    return float(abs(state[0] + 2.0 * zeta * state[1]))
 
 
 def _rigid_base_loads(p: Mapping[str, Any]) -> list[float]:

@@ -24,7 +24,8 @@ from .model import (
     VerificationRow,
 )
 
-__all__ = ["CalcContext", "CalcOutput", "CalcType", "InputSpec", "Sheet", "VerificationCase"]
+__all__ = ["CalcContext", "CalcOutput", "CalcType", "InputSpec", "Sheet", "VerificationCase",
+           "linear_validity_check", "on_limit"]
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -138,6 +139,8 @@ class Sheet:
             if value is None or limit is None:
                 raise ValueError("a check needs a status, or a value, a limit and a comparison")
             status = "pass" if _compare(value, limit, comparison) else "fail"
+            if on_limit(value, limit):
+                note = f"{ON_LIMIT_NOTE}; {note}" if note else ON_LIMIT_NOTE
         c = Check(id=id, description=description, status=status,
                   value=None if value is None else Quantity(value=float(value),
                                                             dimension=dimension),
@@ -153,10 +156,46 @@ class Sheet:
                           checks=tuple(self._checks), purpose=purpose)
 
 
+#: A value within this relative distance of its limit is on the limit (see on_limit).
+ON_LIMIT_REL = 1e-9
+ON_LIMIT_NOTE = ("on the limit (equal to it within 1 part in 10⁹): a non-strict criterion"
+                 " (≤, ≥) passes, a strict one (<, >) fails")
+
+
+#: Largest steady-state amplification a linear viscously damped model is trusted for:
+#: 1/(2ζ) at ζ = 0.005, about the least damping of bolted or welded steel structures
+#: (common practice). Above it supports yield, slip or stiffen before the linear peak.
+MAX_LINEAR_AMPLIFICATION = 100.0
+
+
+def linear_validity_check(sheet: Sheet, amplification: float, what: str) -> None:
+    """Record a failing check when a linear SDOF amplitude has run beyond the model's
+    validity (near resonance with little or no damping); nothing when within it."""
+    if not amplification > MAX_LINEAR_AMPLIFICATION:
+        return
+    sheet.check("linear-validity", f"Response within the linear model's validity ({what}"
+                f" at most {MAX_LINEAR_AMPLIFICATION:g})", value=amplification,
+                limit=MAX_LINEAR_AMPLIFICATION, comparison="<=",
+                note="the linear model is outside its validity here: the excitation is at or"
+                     " very near resonance with little or no damping, and the printed"
+                     " amplitudes are not physical. Real damping, support nonlinearity and the"
+                     " finite run-up limit the response; state the damping and move the"
+                     " natural frequency away from the excitation")
+
+
+def on_limit(value: float, limit: float) -> bool:
+    """Whether ``value`` equals ``limit`` up to round-off. Such a value prints as the
+    limit, so one bit of rounding must not decide the status: it passes ≤ and ≥ and
+    fails < and > (README, "Design checks")."""
+    return abs(value - limit) <= ON_LIMIT_REL * max(abs(value), abs(limit))
+
+
 def _compare(value: float, limit: float, comparison: str) -> bool:
-    ops = {"<=": value <= limit, ">=": value >= limit, "<": value < limit, ">": value > limit}
-    if comparison not in ops:
+    if comparison not in ("<=", ">=", "<", ">"):
         raise ValueError(f"unknown comparison {comparison!r}")
+    if on_limit(value, limit):
+        return comparison in ("<=", ">=")
+    ops = {"<=": value <= limit, ">=": value >= limit, "<": value < limit, ">": value > limit}
     return ops[comparison]
 
 

@@ -145,15 +145,22 @@ def _terminate_as_interrupt(active: bool):
         signal.signal(signal.SIGTERM, previous)
 
 
+def _visible(text: str) -> str:
+    """Control and bidi characters from a job file as escapes: a message quoting a hostile
+    key or value must not drive the terminal (colours, cursor moves, reordered text)."""
+    return "".join(ch if ch == "\n" or ch.isprintable() else f"\\u{ord(ch):04x}"
+                   if ord(ch) < 0x10000 else f"\\U{ord(ch):08x}" for ch in text)
+
+
 def _print_error(exc: ReportgenError) -> None:
     if isinstance(exc, JobError):
         for problem in exc.problems:
-            print(f"error: {str(problem).lstrip(': ')}", file=sys.stderr)
+            print(_visible(f"error: {str(problem).lstrip(': ')}"), file=sys.stderr)
         n = len(exc.problems)
         if n > 1:
             print(f"{n} problems; nothing was written", file=sys.stderr)
         return
-    print(f"error: {exc}", file=sys.stderr)
+    print(_visible(f"error: {exc}"), file=sys.stderr)
 
 
 def _dispatch(args: argparse.Namespace) -> int:

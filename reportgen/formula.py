@@ -15,7 +15,8 @@ from functools import lru_cache
 
 from .units import format_number
 
-__all__ = ["FormulaError", "evaluate", "names_in", "symbol_latex", "to_latex"]
+__all__ = ["FormulaError", "evaluate", "is_scientific", "names_in", "number_latex",
+           "symbol_latex", "to_latex"]
 
 CONSTANTS = {"pi": math.pi}
 FUNCTIONS: dict[str, Callable[..., float]] = {
@@ -89,9 +90,9 @@ def evaluate(expression: str, operands: Mapping[str, float]) -> float:
             a, b = ev(node.left), ev(node.right)
             op = node.op
             if isinstance(op, ast.Add):
-                return a + b
+                return _sum(a, b)
             if isinstance(op, ast.Sub):
-                return a - b
+                return _sum(a, -b)
             if isinstance(op, ast.Mult):
                 return a * b
             if isinstance(op, ast.Div):
@@ -107,6 +108,19 @@ def evaluate(expression: str, operands: Mapping[str, float]) -> float:
     if isinstance(value, complex) or not math.isfinite(value):
         raise FormulaError(f"formula {expression!r} gives a non-finite value")
     return value
+
+
+#: A sum within this many units in the last place of its larger term is round-off.
+ROUNDOFF_ULPS = 4
+
+
+def _sum(a: float, b: float) -> float:
+    """a + b, or exactly 0 where the terms cancel to within round-off: 1 − T at T = 1
+    prints 0, not −4.441 × 10⁻¹⁶ (the digits below a few ulps carry no information)."""
+    total = a + b
+    if abs(total) <= ROUNDOFF_ULPS * math.ulp(max(abs(a), abs(b))):
+        return 0.0
+    return total
 
 
 def symbol_latex(name: str) -> str:
@@ -145,13 +159,18 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
     def paren(s: str) -> str:
         return r"\left(" + s + r"\right)"
 
+    def paren_number(s: str) -> str:
+        # fixed-size brackets: a stretched one is drawn as an outline, absent from the
+        # PDF's text, which would then read 1.27×10⁻⁵² for (1.27×10⁻⁵)²
+        return "(" + s + ")" if is_scientific(s) else paren(s)
+
     def tex(node: ast.expr) -> str:
         if isinstance(node, ast.Constant):
-            return _num(float(node.value), digits)  # type: ignore[arg-type]
+            return number_latex(float(node.value), digits)  # type: ignore[arg-type]
         if isinstance(node, ast.Name):
             if values is not None and node.id in values:
-                text = _num(float(values[node.id]), digits)
-                return paren(text) if text.startswith("-") else text
+                text = number_latex(float(values[node.id]), digits)
+                return paren_number(text) if text.startswith("-") else text
             if node.id == "pi":
                 return r"\pi"
             return symbols.get(node.id) or symbol_latex(node.id)
@@ -167,7 +186,11 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
             left, right = tex(node.left), tex(node.right)
             p = _PREC[type(op)]
             if isinstance(op, ast.Pow):
-                if _prec(node.left) <= 5 or left.startswith("-"):
+                # a number in powers of ten keeps its own exponent: (1.27 × 10⁻⁵)², never
+                # 1.27 × 10⁻⁵², which reads as ten to the power −52
+                if is_scientific(left) and not left.startswith(("(", r"\left(")):
+                    left = paren_number(left)
+                elif _prec(node.left) <= 5 or left.startswith("-"):
                     left = paren(left)
                 return "{" + left + "}^{" + right + "}"
             if _prec(node.left) < p:
@@ -201,7 +224,13 @@ def _is_fraction(node: ast.expr) -> bool:
     return isinstance(node, ast.BinOp) and isinstance(node.op, ast.Div)
 
 
-def _num(value: float, digits: int) -> str:
+def is_scientific(latex: str) -> bool:
+    """Whether a printed number is in powers of ten (it then needs brackets under a power)."""
+    return r"\times 10^{" in latex
+
+
+def number_latex(value: float, digits: int = 6) -> str:
+    """A number as LaTeX: plain where readable, else ``m \\times 10^{e}``."""
     text = format_number(value, digits)
     if "e" in text:
         mant, exp = text.split("e")

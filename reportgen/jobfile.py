@@ -27,6 +27,9 @@ from .units import DIMENSIONS, UnitProblem, parse_quantity
 MAX_JOB_BYTES = 1_000_000
 MAX_CALCS = 200
 MAX_TEXT = 4000
+#: Arrays and tables inside one another: a job needs about 6 (a mount's [x, y] in a calc's
+#: inputs); the limit keeps every recursive walk of the values far from Python's stack.
+MAX_DEPTH = 32
 # attachments are archived inside every PDF: keep packages mailable and readers responsive
 MAX_ATTACHMENTS = 20
 MAX_ATTACHMENT_BYTES = 10_000_000
@@ -90,6 +93,46 @@ class Job:
         return self.path.parent
 
 
+#: Text fields that name things (files, the title block, cross-references): one line, no
+#: space at either end. Free-text fields that may run over several lines.
+NAME_FIELDS = frozenset({"calc_number", "revision", "job_number", "id"})
+MULTILINE_FIELDS = frozenset({"notes", "description"})
+#: Embedding, override and isolate controls make text display in an order other than the
+#: one stored (a title could read differently from its content); the renderer orders
+#: right-to-left scripts itself, so a job never needs them.
+_BIDI_CONTROLS = frozenset(range(0x202A, 0x202F)) | frozenset(range(0x2066, 0x206A))
+
+
+def text_problem(value: str, key: str) -> str | None:
+    """Why ``value`` cannot be the text of field ``key``, or None: the one rule for every
+    text in a job. Control characters (C0, DEL, C1), noncharacters, lone surrogates and
+    bidi controls are refused, as XMP metadata and an archival record cannot carry them
+    faithfully; free-text fields may hold line breaks and tabs; names may not start or
+    end with white space (it would end up in file names and cross-references)."""
+    multiline = key in MULTILINE_FIELDS
+    for i, ch in enumerate(value):
+        c = ord(ch)
+        if ch in "\n\t\r" and multiline:
+            continue
+        what = None
+        if c < 0x20 or 0x7F <= c <= 0x9F:
+            what = ("a line break (this field is one line)" if ch in "\n\r"
+                    else f"the control character U+{c:04X}")
+        elif 0xD800 <= c <= 0xDFFF:
+            what = f"a lone surrogate U+{c:04X}"
+        elif 0xFDD0 <= c <= 0xFDEF or (c & 0xFFFE) == 0xFFFE:
+            what = f"the noncharacter U+{c:04X}"
+        elif c in _BIDI_CONTROLS:
+            what = (f"the bidirectional control U+{c:04X}, which makes text display in an"
+                    " order other than the one written")
+        if what:
+            return f"text contains {what} at character {i + 1}; remove it"
+    if key in NAME_FIELDS and value != value.strip():
+        return (f"{value!r} starts or ends with white space or a line break; a name must not"
+                " (it names files and cross-references)")
+    return None
+
+
 def _nearest(word: str, options: list[str]) -> str:
     close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
     return f" (did you mean '{close[0]}'?)" if close else ""
@@ -142,6 +185,12 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         raw = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise JobError(_syntax_problem(fname, text, exc)) from None
+    except RecursionError:  # the parser recurses once per level of nesting
+        raise JobError(_deep_problem(fname, text)) from None
+    too_deep = _too_deep(raw)
+    if too_deep is not None:
+        calc, fld = too_deep
+        raise JobError(Problem(fname, _TOO_DEEP, calc, fld))
     problems: list[Problem] = []
     v = _Validator(fname, problems, archived=archived)
     for key in raw:
@@ -177,6 +226,49 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
                calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
                raw=raw, attachments=attachments)
+
+
+def _too_deep(raw: Mapping[str, Any]) -> tuple[str, str] | None:
+    """(calc, field) of the first value nested deeper than MAX_DEPTH, else None.
+
+    Iterative, so it cannot itself overflow; every later walk of the job's values (the
+    messages' repr, hashing, JSON) is recursive and stays safe below the limit.
+    """
+    stack: list[tuple[Any, tuple[str, ...], int]] = [(raw, (), 0)]
+    while stack:
+        value, path, depth = stack.pop()
+        if depth > MAX_DEPTH:
+            return _depth_where(path)
+        if isinstance(value, dict):
+            stack.extend((v, (*path, str(k)), depth + 1) for k, v in value.items())
+        elif isinstance(value, list):
+            stack.extend((v, (*path, f"[{i}]"), depth + 1) for i, v in enumerate(value))
+    return None
+
+
+def _depth_where(path: tuple[str, ...]) -> tuple[str, str]:
+    """Name a too-deep value as other messages do: calc '#2', field 'inputs.mass'."""
+    calc = ""
+    if len(path) >= 2 and path[0] == "calc" and path[1].startswith("["):
+        calc, path = f"#{int(path[1][1:-1]) + 1}", path[2:]
+    keys: list[str] = []
+    for part in path:  # the table keys down to the first array index
+        if part.startswith("["):
+            break
+        keys.append(part)
+    return calc, ".".join(keys[:2])  # the job's own field, not the keys inside the value
+
+
+_TOO_DEEP = f"values are nested too deeply (the limit is {MAX_DEPTH} levels of arrays and tables)"
+
+
+def _deep_problem(fname: str, text: str) -> Problem:
+    """The parser gave up on nesting: name the first line that opens too many levels."""
+    for lineno, line in enumerate(text.splitlines(), start=1):
+        if line.count("[") + line.count("{") > MAX_DEPTH:
+            where = _syntax_problem(fname, text, ValueError(f"(at line {lineno}, column 1)"))
+            return Problem(fname, f"{_TOO_DEEP} (line {lineno})", where.calc, where.field)
+    return Problem(fname, _TOO_DEEP)
 
 
 _AT = re.compile(r"\(at line (\d+), column (\d+)\)")
@@ -267,20 +359,28 @@ class _Validator:
         if isinstance(value, (_dt.date, _dt.datetime)):
             value = value.isoformat()
         if not isinstance(value, str):
-            self.add(f"expected text, found {type(value).__name__} {value!r}", calc=calc,
+            self.add(f"expected text, found {type(value).__name__} {_short(value)}", calc=calc,
                      field=f"{where}{key}")
             return ""
         if len(value) > MAX_TEXT:
             self.add(f"text is {len(value)} characters; the limit is {MAX_TEXT}", calc=calc,
                      field=f"{where}{key}")
             return ""
+        bad = text_problem(value, key)
+        if bad:
+            self.add(bad, calc=calc, field=f"{where}{key}")
+            return ""
         if required and not value.strip():
             self.add(f"required field '{key}' is empty", calc=calc, field=f"{where}{key}")
         return value
 
     def _date(self, table: Mapping[str, Any], key: str, where: str) -> str:
-        value = table.get(key)
-        if value is None or value == "":
+        if key not in table:
+            return ""
+        value = table[key]
+        if value == "":
+            self.add("the date is empty: give an ISO date such as \"2026-12-01\", or leave"
+                     " the field out", field=f"{where}{key}")
             return ""
         if isinstance(value, _dt.datetime):
             value = value.date()
@@ -291,7 +391,7 @@ class _Validator:
                 return _dt.date.fromisoformat(value).isoformat()
             except ValueError:
                 pass
-        self.add(f"expected an ISO date such as \"2026-12-01\", found {value!r}",
+        self.add(f"expected an ISO date such as \"2026-12-01\", found {_short(value)}",
                  field=f"{where}{key}")
         return ""
 
@@ -425,7 +525,8 @@ class _Validator:
     def calc(self, c: Mapping[str, Any], index: int, plugins: PluginSet,
              seen: dict[str, int]) -> CalcSpec | None:
         cid = c.get("id")
-        label = cid if isinstance(cid, str) and cid else f"#{index + 1}"
+        label = (cid if isinstance(cid, str) and cid and text_problem(cid, "id") is None
+                 else f"#{index + 1}")
         before = len(self.problems)
         for key in c:
             if key not in CALC_KEYS:
@@ -436,7 +537,9 @@ class _Validator:
                      f" {_short(cid)}", calc=label, field="id")
         elif not cid:
             self.add("required field 'id' is missing", calc=label, field="id")
-        elif not _ID.match(cid) or len(cid) > 64:
+        elif text_problem(cid, "id"):
+            self.add(str(text_problem(cid, "id")), calc=label, field="id")
+        elif not _ID.fullmatch(cid) or len(cid) > 64:
             self.add(f"id {cid!r} must be lowercase letters, digits and single '-'"
                      " (at most 64)", calc=label, field="id")
         elif cid in seen:
@@ -455,6 +558,8 @@ class _Validator:
         elif not plugin:
             self.add("required field 'plugin' is missing; known calc types: "
                      + ", ".join(plugins.names()), calc=label, field="plugin")
+        elif text_problem(plugin, "plugin"):
+            self.add(str(text_problem(plugin, "plugin")), calc=label, field="plugin")
         else:
             reg = plugins.get(plugin)
             if reg is None:
@@ -547,6 +652,8 @@ class _Validator:
                                       f" [[\"0 m\", \"0 m\"], [\"1.2 m\", \"0 m\"]], found"
                                       f" {_short(raw)}")
                 return tuple(tuple(parse_quantity(v, spec.dimension) for v in p) for p in raw)
+            if isinstance(raw, str) and text_problem(raw, "quantity"):
+                raise UnitProblem(str(text_problem(raw, "quantity")))
             value = parse_quantity(raw, spec.dimension)
             self._range(value, spec)
             return value

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import io
 import re
+import unicodedata
+from collections import Counter
 from collections.abc import Iterable, Iterator
 from typing import Any
 
@@ -228,6 +230,60 @@ def _squash(text: str) -> str:
     return re.sub(r"\s+", "", text.replace("\u00ad", ""))
 
 
+def _comparable(text: str) -> str:
+    """Text as the self-check compares it: NFKC (a ligature glyph may read back as "fi"
+    or "ﬁ", an Arabic letter as its contextual form), then without white space."""
+    return _squash(unicodedata.normalize("NFKC", text))
+
+
+#: Right-to-left letters (Hebrew, Arabic, Syriac, Thaana, N'Ko ... and their presentation
+#: forms) and the punctuation between them, which takes their direction; digits end a run.
+_RTL_CHARS = ("\u0590-\u08ff\ufb1d-\ufdff\ufe70-\ufefc\U00010800-\U00010fff"
+              "\U0001e800-\U0001efff")
+_RTL_RUN = re.compile(f"([{_RTL_CHARS}](?:[^\\w]*[{_RTL_CHARS}])*)")
+
+
+def shown(text: str, expected: str) -> bool:
+    """Whether ``expected`` is in ``text`` (both :func:`_comparable`), allowing for what a
+    correct PDF does to right-to-left text: its glyphs are drawn, and so read back, in
+    visual order. Each right-to-left run must appear as written, reversed, or (where
+    shaping joined letters into one glyph) as the same letters in one stretch of text;
+    everything else must appear as written. A title that is not on the page still fails.
+    """
+    if expected in text:
+        return True
+    pieces = _RTL_RUN.split(expected)
+    for i, piece in enumerate(pieces):
+        if not piece:
+            continue
+        if i % 2 == 0:  # left-to-right text between runs
+            if piece not in text:
+                return False
+        elif piece not in text and piece[::-1] not in text and not _anagram_in(text, piece):
+            return False
+    return True
+
+
+def _anagram_in(text: str, word: str) -> bool:
+    """Whether some stretch of ``text`` holds exactly the letters of ``word`` (any order)."""
+    n = len(word)
+    if n > len(text):
+        return False
+    want = Counter(word)
+    have = Counter(text[:n])
+    if have == want:
+        return True
+    for i in range(n, len(text)):
+        have[text[i]] += 1
+        old = text[i - n]
+        have[old] -= 1
+        if not have[old]:
+            del have[old]
+        if have == want:
+            return True
+    return False
+
+
 def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None) -> None:
     """Raise RenderError unless ``pdf`` says what ``doc`` says (see the module docstring).
 
@@ -249,16 +305,16 @@ def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None)
     n_pages = len(pages)
     # Compared without white space: text runs split a line wherever the font or the
     # position changes, so where a space falls between runs is not the PDF's content.
-    text = _squash(" ".join(pages))
+    text = _comparable(" ".join(pages))
     if f"of{n_pages}" not in text or f"of{n_pages + 1}" in text:
         problems.append(f"the page footer does not count {n_pages} pages")
     for s in doc.sections:
-        if _squash(_norm(s.title)[:60]) not in text:
+        if not shown(text, _comparable(_norm(s.title)[:60])):
             problems.append(f"section title {s.title!r} is missing from the text")
         for r in s.results:
             if r.key_result:
                 value, _ = quantity_parts(r.quantity, doc.info.units)
-                if _squash(value) not in text:
+                if _comparable(value) not in text:
                     problems.append(f"key result {s.calc_id}/{r.key} = {value} is not shown")
     for status in {c.status for _, c in doc.checks}:
         if status.upper() not in text:

@@ -25,7 +25,7 @@ from .html import data_uri
 from .pdf import ASSET_SCHEME, asset_mime
 
 #: Bump when the drawing code changes, so cached assets of the old look are not reused.
-RENDERER_TAG = "assets/4"
+RENDERER_TAG = "assets/5"  # 5: superscripts and subscripts as text
 #: Below this many assets a pool's start-up (~50 ms a worker) costs more than it saves.
 MIN_PARALLEL = 6
 

@@ -9,9 +9,9 @@ from __future__ import annotations
 import math
 import re
 
-from ..formula import symbol_latex, to_latex
+from ..formula import is_scientific, number_latex, symbol_latex, to_latex
 from ..model import Equation
-from ..units import DIMENSIONS, display, format_number
+from ..units import DIMENSIONS, display
 
 
 def unit_latex(label: str) -> str:
@@ -22,11 +22,7 @@ def unit_latex(label: str) -> str:
 
 
 def value_latex(value: float, digits: int = 4) -> str:
-    text = format_number(value, digits)
-    if "e" in text:
-        mant, exp = text.split("e")
-        return f"{mant} \\times 10^{{{int(exp)}}}"
-    return text
+    return number_latex(value, digits)
 
 
 def equation_latex(eq: Equation, units: str = "SI") -> str:
@@ -46,7 +42,10 @@ def equation_latex(eq: Equation, units: str = "SI") -> str:
         us_value, us_label = display(eq.result.value, eq.result.dimension, "US")
         result += r"\ \left(" + value_latex(us_value) + unit_latex(us_label) + r"\right)"
     elif dim.name == "angle":
-        result += r"\ \left(" + value_latex(math.degrees(eq.result.value)) + r"^{\circ}\right)"
+        degrees = value_latex(math.degrees(eq.result.value))
+        if is_scientific(degrees):  # one superscript per base: brace the whole number
+            degrees = "{" + degrees + "}"
+        result += r"\ \left(" + degrees + r"^{\circ}\right)"
     parts.append(result)
     return " = ".join(parts)
 

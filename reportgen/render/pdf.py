@@ -211,8 +211,11 @@ def _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
                get_later) -> bytes:
     # fontTools (used when HarfBuzz subsetting is not installed) stamps the clock into
     # each embedded font unless SOURCE_DATE_EPOCH is set: pin it to the revision date.
+    # The variable is a count of seconds from 1970 and may not be negative (fontTools
+    # writes it as an unsigned count from 1904 and fails before then): revision dates
+    # before 1970 stamp the fonts with 1970-01-01, still the same for every build.
     stamp = _dt.datetime.fromisoformat((date or "2000-01-01") + "T00:00:00+00:00")
-    os.environ["SOURCE_DATE_EPOCH"] = str(int(stamp.timestamp()))
+    os.environ["SOURCE_DATE_EPOCH"] = str(max(int(stamp.timestamp()), 0))
     logging.getLogger("weasyprint").setLevel(logging.ERROR)
     logging.getLogger("fontTools").setLevel(logging.ERROR)
     import weasyprint
