@@ -31,7 +31,7 @@ MAX_ATTACHMENTS = 20
 MAX_ATTACHMENT_BYTES = 10_000_000
 MAX_ATTACHMENTS_TOTAL = 25_000_000
 #: embedded names the package itself uses; an attachment may not take one of them
-RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json"})
+RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json", "environment.lock"})
 _ID = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
 _SAFE_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")
 
