@@ -66,6 +66,10 @@ def _installed_from_index(dist: metadata.Distribution) -> bool:
     return not str(direct.get("url", "")).startswith("file:")
 
 
+#: Left out of the lock, as pip freeze leaves them out: a new venv brings its own.
+INSTALLER_TOOLS = frozenset({"pip", "setuptools", "wheel", "distribute"})
+
+
 @functools.lru_cache(maxsize=1)
 def environment_lock() -> bytes:
     """A pip requirements file of every distribution installed here, with exact versions.
@@ -84,6 +88,8 @@ def environment_lock() -> bytes:
     for dist in metadata.distributions(path=path):
         name = dist.metadata["Name"] if dist.metadata else None
         if not name or not dist.version:
+            continue
+        if normalized_name(name) in INSTALLER_TOOLS:
             continue
         # the first one on the path is the one imported, as pip freeze does
         found.setdefault(normalized_name(name), (name, dist.version, _installed_from_index(dist)))
