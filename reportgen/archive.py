@@ -6,11 +6,16 @@ This module decides what goes into a package's attachments and reads them back.
 from __future__ import annotations
 
 import dataclasses
+import functools
 import hashlib
 import json
 import mimetypes
+import os
 import platform
+import re
+import sys
 import tomllib
+import zlib
 from importlib import metadata
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -26,6 +31,13 @@ MANIFEST_FORMAT = "reportgen.manifest/1"
 JOB_NAME = "job.toml"
 RESULTS_NAME = "results.json"
 MANIFEST_NAME = "manifest.json"
+LOCK_NAME = "environment.lock"
+#: Reading a package back never inflates more than this: one embedded file, all of them
+#: together, and how many. A package holds its job (1 MB at most), results, manifest, lock
+#: and up to 20 attachments of 25 MB in total, well inside these.
+MAX_EMBEDDED_BYTES = 64 * 1024 * 1024
+MAX_EMBEDDED_TOTAL = 128 * 1024 * 1024
+MAX_EMBEDDED_FILES = 32
 LIBRARIES = ("numpy", "scipy", "matplotlib", "pint", "jinja2", "weasyprint", "pluggy",
              "ziamath")
 
@@ -41,6 +53,64 @@ def library_version(dist: str) -> str:
         return "not installed"
 
 
+def normalized_name(name: str) -> str:
+    return re.sub(r"[-_.]+", "-", name).lower()
+
+
+def _installed_from_index(dist: metadata.Distribution) -> bool:
+    """False for a distribution installed from a local folder or file (PEP 610)."""
+    try:
+        direct = json.loads(dist.read_text("direct_url.json") or "{}")
+    except (ValueError, OSError):
+        return True
+    return not str(direct.get("url", "")).startswith("file:")
+
+
+#: Left out of the lock, as pip freeze leaves them out: a new venv brings its own.
+INSTALLER_TOOLS = frozenset({"pip", "setuptools", "wheel", "distribute"})
+
+
+@functools.lru_cache(maxsize=1)
+def environment_lock() -> bytes:
+    """A pip requirements file of every distribution installed here, with exact versions.
+
+    Deterministic for one environment: sorted, no paths, no clock, nothing of the output
+    folder. The working folder is left out of the search (``python -m`` puts it on the
+    path, and a source checkout there holds its own egg-info). reportgen itself and
+    anything installed from a local folder are comment lines: pip must not ask a package
+    index for an in-house name; they are installed from their own source or wheel.
+    """
+    from . import __version__
+
+    cwd = os.getcwd()
+    path = [p for p in sys.path if p and os.path.abspath(p) != cwd]
+    found: dict[str, tuple[str, str, bool]] = {}
+    for dist in metadata.distributions(path=path):
+        name = dist.metadata["Name"] if dist.metadata else None
+        if not name or not dist.version:
+            continue
+        if normalized_name(name) in INSTALLER_TOOLS:
+            continue
+        # the first one on the path is the one imported, as pip freeze does
+        found.setdefault(normalized_name(name), (name, dist.version, _installed_from_index(dist)))
+    lines = [
+        "# reportgen environment lock: the Python distributions installed when this"
+        " package was built.",
+        f"# Python {platform.python_version()} ({platform.python_implementation()}),"
+        f" {platform.platform(terse=True)}",
+        f"# reportgen=={__version__} is installed from reportgen's own source or wheel of"
+        " that version, not from a package index:",
+        f"#   pip install -r environment.lock ./reportgen-{__version__}",
+    ]
+    for key in sorted(found):
+        name, version, from_index = found[key]
+        if key == "reportgen" or not from_index:
+            lines.append(f"# {name}=={version}  (installed from a local source)")
+        else:
+            lines.append(f"{name}=={version}")
+    return ("\n".join(lines) + "\n").encode("utf-8")
+
+
 def manifest_data(doc: Document, job: Job, results: bytes) -> dict[str, Any]:
     from . import __version__
 
@@ -52,6 +122,7 @@ def manifest_data(doc: Document, job: Job, results: bytes) -> dict[str, Any]:
         "job_file": {"name": JOB_NAME, "original_name": job.path.name,
                      "sha256": sha256(job.source)},
         "results": {"name": RESULTS_NAME, "sha256": sha256(results)},
+        "environment_lock": {"name": LOCK_NAME, "sha256": sha256(environment_lock())},
         "attachments": [{"name": a.name, "path": a.path, "sha256": sha256(a.data),
                          "size": len(a.data)} for a in sorted(job.attachments,
                                                                key=lambda a: a.name)],
@@ -80,6 +151,10 @@ def embedded_files(job: Job, results: bytes, manifest: bytes) -> list[EmbeddedFi
                      description="Results and check statuses (SI)", relationship="Data"),
         EmbeddedFile(name=MANIFEST_NAME, data=manifest, mime="application/json",
                      description="Hashes and software versions of this build",
+                     relationship="Supplement"),
+        EmbeddedFile(name=LOCK_NAME, data=environment_lock(), mime="text/plain",
+                     description="The Python distributions installed at this build"
+                                 " (pip requirements)",
                      relationship="Supplement"),
     ]
     for a in job.attachments:
@@ -176,17 +251,93 @@ def safe_relative(path: str) -> tuple[str, ...]:
     return parts
 
 
+def _refuse(path: Path, message: str) -> NotAPackage:
+    return NotAPackage(Problem(str(path), f"refused to read: {message}"))
+
+
+def _decoded(stream: Any, path: Path, name: str, budget: int) -> bytes:
+    """The embedded file's data, inflated by us with a cap; never more than ``budget``.
+
+    qpdf would inflate the whole stream into memory before we could look at it, so the
+    raw (encoded) bytes are read, which cannot exceed the PDF's own size, and inflated
+    here. Only FlateDecode or no filter: this tool writes nothing else.
+    """
+    import pikepdf
+
+    cap = min(MAX_EMBEDDED_BYTES, budget)
+    params = stream.get("/Params")
+    declared = params.get("/Size") if isinstance(params, pikepdf.Dictionary) else None
+    if isinstance(declared, int) and declared > MAX_EMBEDDED_BYTES:
+        raise _refuse(path, f"embedded file {name!r} declares {int(declared)} bytes; the"
+                            f" limit is {MAX_EMBEDDED_BYTES} bytes")
+    filters = stream.get("/Filter")
+    if filters is None:
+        names: list[str] = []
+    elif isinstance(filters, pikepdf.Array):
+        names = [str(f) for f in filters]
+    else:
+        names = [str(filters)]
+    if names not in ([], ["/FlateDecode"]) or (names and stream.get("/DecodeParms")):
+        raise _refuse(path, f"embedded file {name!r} is encoded with"
+                            f" {' '.join(names) or 'parameters'}; packages use FlateDecode only")
+    raw = stream.read_raw_bytes()
+    if not names:
+        data = raw
+    else:
+        inflater = zlib.decompressobj()
+        chunks: list[bytes] = []
+        size = 0
+        pending = raw
+        try:
+            while pending and not inflater.eof:
+                # at most cap + 1 bytes leave zlib in all: one more than allowed tells us
+                chunk = inflater.decompress(pending, cap + 1 - size)
+                chunks.append(chunk)
+                size += len(chunk)
+                if size > cap:
+                    break
+                pending = inflater.unconsumed_tail
+            if size <= cap and not inflater.eof:
+                chunk = inflater.flush()
+                size += len(chunk)
+                chunks.append(chunk)
+        except zlib.error as exc:
+            raise NotAPackage(Problem(str(path), f"embedded file {name!r} is damaged: {exc}")
+                              ) from None
+        data = b"".join(chunks)
+    if len(data) > cap:
+        if cap < MAX_EMBEDDED_BYTES:
+            raise _refuse(path, f"the embedded files inflate to more than"
+                                f" {MAX_EMBEDDED_TOTAL} bytes in all (at {name!r})")
+        raise _refuse(path, f"embedded file {name!r} inflates to more than"
+                            f" {MAX_EMBEDDED_BYTES} bytes")
+    return data
+
+
 def embedded_of(path: Path) -> dict[str, bytes]:
-    """Every embedded file of the PDF at ``path``, by name. NotAPackage if not a PDF."""
+    """Every embedded file of the PDF at ``path``, by name. NotAPackage if not a PDF.
+
+    Bounded: more than MAX_EMBEDDED_FILES files, one file inflating beyond
+    MAX_EMBEDDED_BYTES or all beyond MAX_EMBEDDED_TOTAL refuse the PDF (NotAPackage).
+    """
     import pikepdf
 
     try:
         with pikepdf.open(path) as pdf:
-            return {str(name): spec.get_file().read_bytes()
-                    for name, spec in pdf.attachments.items()}
+            specs = pdf.attachments
+            if len(specs) > MAX_EMBEDDED_FILES:
+                raise _refuse(path, f"the PDF embeds {len(specs)} files; the limit is"
+                                    f" {MAX_EMBEDDED_FILES}")
+            out: dict[str, bytes] = {}
+            budget = MAX_EMBEDDED_TOTAL
+            for name, spec in specs.items():
+                data = _decoded(spec.get_file().obj, path, str(name), budget)
+                budget -= len(data)
+                out[str(name)] = data
+            return out
     except FileNotFoundError:
         raise NotAPackage(Problem(str(path), "no such file")) from None
-    except (pikepdf.PdfError, OSError, ValueError) as exc:
+    except (pikepdf.PdfError, OSError, ValueError, KeyError, AttributeError) as exc:
         raise NotAPackage(Problem(str(path), f"not a PDF file, or damaged beyond reading:"
                                   f" {exc}")) from None
 
@@ -243,11 +394,14 @@ def open_package(path: Path | str) -> Package:
 
     expected = {JOB_NAME: listed_hash(manifest.get("job_file")),
                 RESULTS_NAME: listed_hash(manifest.get("results"))}
+    if "environment_lock" in manifest:  # packages from before the lock file have none
+        expected[LOCK_NAME] = listed_hash(manifest["environment_lock"])
     attachments = manifest.get("attachments", [])
     if not isinstance(attachments, list) or not all(
             isinstance(a, dict) and safe_name(str(a.get("name", ""))) == a.get("name")
             and safe_relative(str(a.get("path", "")))
-            and a["name"] not in (JOB_NAME, RESULTS_NAME, MANIFEST_NAME) for a in attachments):
+            and a["name"] not in (JOB_NAME, RESULTS_NAME, MANIFEST_NAME, LOCK_NAME)
+            for a in attachments):
         raise AlteredPackage(Problem(where, f"{MANIFEST_NAME} lists attachments with unsafe"
                                      " or missing names"))
     for a in attachments:

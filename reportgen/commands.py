@@ -117,8 +117,10 @@ def build_command(args) -> int:
     if target.is_dir():
         from .calcset import build_folder
 
-        return build_folder(target, opts, workers=jobs, executor=executor,
+        code = build_folder(target, opts, workers=jobs, executor=executor,
                             scheduler=scheduler, demo=args.command == "demo")
+        _prune_cache(opts)
+        return code
     if not target.exists():
         raise JobError(Problem(str(target), "no such job file"))
     if executor != "local":
@@ -129,7 +131,16 @@ def build_command(args) -> int:
     opts = BuildOptions(**{**opts.__dict__, "workers": jobs, "split": True})
     result = build_job(target, plugins, opts)
     print(summary_line(result))
+    _prune_cache(opts)
     return int(result.exit_code)
+
+
+def _prune_cache(opts) -> None:
+    """Keep the cache under its cap (REPORTGEN_CACHE_MAX_MB) once the outputs are written."""
+    if opts.use_cache:
+        from .cache import default_cache_dir, prune_cache
+
+        prune_cache(opts.cache_dir or default_cache_dir())
 
 
 def summary_line(result) -> str:

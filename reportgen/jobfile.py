@@ -35,9 +35,16 @@ MAX_ATTACHMENTS = 20
 MAX_ATTACHMENT_BYTES = 10_000_000
 MAX_ATTACHMENTS_TOTAL = 25_000_000
 #: embedded names the package itself uses; an attachment may not take one of them
-RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json"})
-_ID = re.compile(r"^[a-z0-9]+(-[a-z0-9]+)*$")
-_SAFE_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$")
+RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json", "environment.lock"})
+#: The shapes of ids, file-naming fields and dates: the validator and the JSON Schema
+#: (reportgen/schema.py) both use these.
+ID_PATTERN = r"^[a-z0-9]+(-[a-z0-9]+)*$"
+MAX_ID = 64
+NAME_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$"
+DATE_PATTERN = r"^[0-9]{4}-[0-9]{2}-[0-9]{2}$"
+_ID = re.compile(ID_PATTERN)
+_SAFE_NAME = re.compile(NAME_PATTERN)
+_DATE = re.compile(DATE_PATTERN)
 
 PACKAGE_KEYS = {
     "title": True, "client": False, "project": False, "job_number": True,
@@ -46,6 +53,18 @@ PACKAGE_KEYS = {
     "approved_by": False, "approved_date": False, "revision_history": False,
     "template_dir": False, "firm": False, "previous_package": False, "attachments": False,
 }
+#: What each [package] key holds ("name": text that also names the output files).
+PACKAGE_KINDS = {
+    "title": "text", "client": "text", "project": "text", "job_number": "text",
+    "calc_number": "name", "revision": "name", "date": "date", "units": "units",
+    "prepared_by": "text", "prepared_date": "date", "checked_by": "text",
+    "checked_date": "date", "approved_by": "text", "approved_date": "date",
+    "revision_history": "history", "template_dir": "folder", "firm": "text",
+    "previous_package": "path", "attachments": "files",
+}
+#: The keys of one [[package.revision_history]] entry, and whether each is required.
+HISTORY_KEYS = {"revision": True, "date": False, "description": True, "by": False}
+UNIT_SYSTEMS = ("SI", "US")
 CALC_KEYS = {"id", "plugin", "title", "notes", "inputs", "criteria"}
 
 
@@ -386,7 +405,8 @@ class _Validator:
             value = value.date()
         if isinstance(value, _dt.date):
             return value.isoformat()
-        if isinstance(value, str):
+        if isinstance(value, str) and _DATE.fullmatch(value):
+            # only YYYY-MM-DD: fromisoformat alone also takes 20261201 and 2026-W49-2
             try:
                 return _dt.date.fromisoformat(value).isoformat()
             except ValueError:
@@ -401,9 +421,7 @@ class _Validator:
                 self.add(f"unknown field '{key}'{_nearest(key, list(PACKAGE_KEYS))}",
                          field=f"package.{key}")
         t = {k: self._text(pkg, k, "package.", req) for k, req in PACKAGE_KEYS.items()
-             if k not in ("revision_history", "date", "prepared_date", "checked_date",
-                          "approved_date", "units", "template_dir", "previous_package",
-                          "attachments")}
+             if PACKAGE_KINDS[k] in ("text", "name")}
         for key in ("calc_number", "revision"):
             if t[key] and not _SAFE_NAME.match(t[key]):
                 self.add(f"'{t[key]}' cannot name a file: use letters, digits, '.', '_' or"
@@ -415,7 +433,7 @@ class _Validator:
         dates = {k: self._date(pkg, k, "package.")
                  for k in ("prepared_date", "checked_date", "approved_date")}
         units = pkg.get("units", "SI")
-        if units not in ("SI", "US"):
+        if units not in UNIT_SYSTEMS:
             self.add(f"expected \"SI\" or \"US\", found {units!r}", field="package.units")
             units = "SI"
         history: list[RevisionEntry] = []
@@ -431,9 +449,8 @@ class _Validator:
                          field=where.rstrip("."))
                 continue
             for key in h:
-                if key not in ("revision", "date", "description", "by"):
-                    self.add(f"unknown field '{key}'"
-                             f"{_nearest(key, ['revision', 'date', 'description', 'by'])}",
+                if key not in HISTORY_KEYS:
+                    self.add(f"unknown field '{key}'{_nearest(key, list(HISTORY_KEYS))}",
                              field=where + key)
             history.append(RevisionEntry(
                 revision=self._text(h, "revision", where, True),
@@ -539,7 +556,7 @@ class _Validator:
             self.add("required field 'id' is missing", calc=label, field="id")
         elif text_problem(cid, "id"):
             self.add(str(text_problem(cid, "id")), calc=label, field="id")
-        elif not _ID.fullmatch(cid) or len(cid) > 64:
+        elif not _ID.fullmatch(cid) or len(cid) > MAX_ID:
             self.add(f"id {cid!r} must be lowercase letters, digits and single '-'"
                      " (at most 64)", calc=label, field="id")
         elif cid in seen:
@@ -674,6 +691,13 @@ class _Validator:
         if spec.maximum is not None and value > spec.maximum:
             raise UnitProblem(f"must be at most {spec.maximum:g} {unit}, found"
                               f" {value:g} {unit}".replace("  ", " "))
+
+
+def empty_date_allowed() -> bool:
+    """Whether an empty string stands for "no date" (asked of the validator itself)."""
+    problems: list[Problem] = []
+    _Validator("", problems)._date({"d": ""}, "d", "")
+    return not problems
 
 
 def _example(spec: InputSpec, n: int = 1) -> str:

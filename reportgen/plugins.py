@@ -81,9 +81,15 @@ def get_plugin_manager(extra: Iterable[tuple[str, object]] = (), *,
     pm.add_hookspecs(hookspecs)
     result = PluginSet(pm=pm)
     sources: list[tuple[str, str, str, object]] = []
+    # disabled plugins are skipped before anything of them is imported: disabling one is
+    # how a user steps around a plugin whose import misbehaves
+    skip = {n.strip() for n in os.environ.get("REPORTGEN_PLUGINS_DISABLE", "").split(",")
+            if n.strip()}
     if entry_points:
         for ep in sorted(metadata.entry_points(group=hookspecs.ENTRY_POINT_GROUP),
                          key=lambda e: e.name):
+            if ep.name in skip:
+                continue
             dist = ep.dist.name if ep.dist else "?"
             dver = ep.dist.version if ep.dist else "?"
             try:
@@ -95,9 +101,7 @@ def get_plugin_manager(extra: Iterable[tuple[str, object]] = (), *,
     for name, module in extra:
         sources.append((name, getattr(module, "__package_name__", name),
                         str(getattr(module, "__version__", "0")), module))
-    if os.environ.get("REPORTGEN_PLUGINS_DISABLE"):
-        skip = set(os.environ["REPORTGEN_PLUGINS_DISABLE"].split(","))
-        sources = [s for s in sources if s[0] not in skip]
+    sources = [s for s in sources if s[0] not in skip]
     for name, dist, dver, module in sources:
         try:
             pm.register(module, name=name)

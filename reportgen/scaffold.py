@@ -108,7 +108,10 @@ def new_plugin(name: str, directory: Path | None = None) -> int:
     for rel in sorted(plugin_files(name)):
         print(f"  {rel}")
     print("next:")
-    print(f"  pip install -e {target}      # or: pip install {target}")
+    # a bare name would make pip ask a package index for an in-house name: say it is a path
+    local = str(target) if target.is_absolute() or str(target).startswith(("./", "../")) \
+        else f"./{target}"
+    print(f"  pip install -e {local}")
     print(f"  pytest {target}")
     print(f"  reportgen build {target / 'example_job.toml'} --out {target / 'out'}")
     return int(ExitCode.OK)
@@ -129,7 +132,8 @@ version = "0.1.0"
 description = "In-house reportgen calc plugin: $name"
 readme = "README.md"
 requires-python = ">=3.11"
-dependencies = ["$requirement"]
+# everything src/ imports: reportgen, numpy (the method), scipy (its verification)
+dependencies = ["$requirement", "numpy>=1.26", "scipy>=1.11"]
 
 [project.optional-dependencies]
 test = ["pytest>=8"]

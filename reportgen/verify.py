@@ -15,11 +15,14 @@ from typing import Any
 
 from .archive import (
     LIBRARIES,
+    LOCK_NAME,
     AlteredPackage,
     NotAPackage,
     embedded_of,
+    environment_lock,
     library_version,
     load_embedded_job,
+    normalized_name,
     open_package,
     safe_name,
 )
@@ -101,8 +104,26 @@ def compare_results(embedded: dict[str, Any], rebuilt: dict[str, Any],
     return rows
 
 
-def environment_differences(manifest: dict[str, Any], rebuilt: dict[str, Any]) -> list[str]:
-    """Software that differs between the build recorded in the manifest and this machine."""
+def lock_versions(lock: bytes) -> dict[str, str]:
+    """{normalized name: version} of the pinned lines of an environment lock file."""
+    out = {}
+    for line in lock.decode("utf-8", "replace").splitlines():
+        line = line.strip()
+        if line.startswith("#") and "==" in line and "(installed from" in line:
+            line = line.lstrip("#").strip().split()[0]  # reportgen or a local source
+        name, sep, version = line.partition("==")
+        if sep and name and not name.startswith("#"):
+            out[normalized_name(name)] = version.strip()
+    return out
+
+
+def environment_differences(manifest: dict[str, Any], rebuilt: dict[str, Any],
+                            lock: bytes | None = None) -> list[str]:
+    """Software that differs between the build recorded in the package and this machine.
+
+    The manifest names the main libraries; the lock file, when the package has one, every
+    distribution that was installed.
+    """
     from . import __version__
 
     out = []
@@ -126,6 +147,15 @@ def environment_differences(manifest: dict[str, Any], rebuilt: dict[str, Any]) -
                 else "not used")
         if then != here:
             out.append(f"calc type {name}: {then} at build, {here} here")
+    if lock is not None:
+        said = {normalized_name(n) for n in set(libs) | set(LIBRARIES)} | {"reportgen"}
+        pinned = lock_versions(lock)
+        here_all = lock_versions(environment_lock())
+        for name in sorted(set(pinned) | set(here_all)):
+            if name in said or pinned.get(name) == here_all.get(name):
+                continue
+            out.append(f"{name}: {pinned.get(name, 'not installed')} at build,"
+                       f" {here_all.get(name, 'not installed')} here")
     return out
 
 
@@ -163,7 +193,9 @@ def verify_one(path: str, rtol: float) -> dict[str, Any]:
     n_checks = sum(len(c.get("checks", [])) for c in rebuilt.get("calcs", []))
     files = len(pkg.files)
     return {**out, "exit_code": int(ExitCode.CHECKS_FAIL if diffs else ExitCode.OK),
-            "differences": diffs, "environment": environment_differences(pkg.manifest, rebuilt),
+            "differences": diffs,
+            "environment": environment_differences(pkg.manifest, rebuilt,
+                                                   pkg.files.get(LOCK_NAME)),
             "results": n_results, "checks": n_checks, "files": files,
             "label": f"{pkg.results.get('package', {}).get('calc_number', '?')} revision"
                      f" {pkg.results.get('package', {}).get('revision', '?')}"}

@@ -183,7 +183,8 @@ def test_pdfa3b_metadata_and_embedded_files(work, builds):
         assert "QEP-2417" in str(info.Subject) and "QEP-2417-V-101" in str(info.Subject)
         assert "QEP-2417-V-101" in str(info.Keywords)
         names = sorted(pdf.attachments)
-        assert names == ["job.toml", "manifest.json", "p1-readings.csv", "results.json"]
+        assert names == ["environment.lock", "job.toml", "manifest.json", "p1-readings.csv",
+                         "results.json"]
         af = {spec.objgen for spec in pdf.Root.AF if spec.is_indirect}
         relationships = {}
         for name, spec in pdf.attachments.items():
@@ -191,7 +192,8 @@ def test_pdfa3b_metadata_and_embedded_files(work, builds):
             relationships[name] = str(spec.obj.AFRelationship)
             assert "/Subtype" in spec.obj.EF.F
         assert relationships == {"job.toml": "/Source", "results.json": "/Data",
-                                 "manifest.json": "/Supplement", "p1-readings.csv": "/Data"}
+                                 "manifest.json": "/Supplement", "p1-readings.csv": "/Data",
+                                 "environment.lock": "/Supplement"}
         assert str(pdf.attachments["job.toml"].obj.EF.F.Subtype) == "/application/toml"
         assert str(pdf.attachments["p1-readings.csv"].obj.EF.F.Subtype) == "/text/csv"
 
@@ -251,7 +253,7 @@ def test_round_trip_extract_gives_the_job_bytes(work, builds, tmp_path, capsys):
     assert (out / "p1-readings.csv").read_bytes() == SURVEY
     assert (out / "results.json").read_bytes() == _results(work, "hb-cold").read_bytes()
     assert sorted(p.name for p in out.iterdir()) == [
-        "job.toml", "manifest.json", "p1-readings.csv", "results.json"]
+        "environment.lock", "job.toml", "manifest.json", "p1-readings.csv", "results.json"]
 
 
 def _crafted(path: Path, names: list[str]) -> Path:

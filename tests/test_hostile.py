@@ -241,7 +241,7 @@ def test_job_text_is_escaped_and_reads_nothing(tmp_path, no_network, opened, cap
     assert "Pump49" not in text  # the template engine did not evaluate job text
     with pikepdf.open(pdf_path) as pdf:
         names = set(pdf.attachments)
-        assert names <= {"job.toml", "results.json", "manifest.json"}, names
+        assert names <= {"job.toml", "results.json", "manifest.json", "environment.lock"}, names
         passwd_head = PASSWD.read_bytes()[:20] if PASSWD.exists() else b"root:x:0:0"
         for name in names:
             data = pdf.attachments[name].get_file().read_bytes()

@@ -18,7 +18,7 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from ..cache import default_cache_dir
+from ..cache import default_cache_dir, touch
 from ..model import Document, Equation, Figure, to_json
 from .figures import figure_points
 from .html import data_uri
@@ -131,6 +131,7 @@ class AssetCache:
         head, sep, body = raw.partition(b"\n")
         if not sep or head != hashlib.sha256(body).hexdigest().encode("ascii"):
             return None  # corrupt or truncated: ignore, it will be rewritten
+        touch(path)  # least recently used goes first when the cache is pruned
         return body
 
     def put(self, key: str, payload: bytes) -> None:
