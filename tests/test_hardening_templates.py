@@ -313,7 +313,7 @@ def test_command_line_template_dir_may_be_anywhere_and_a_clean_utf16_logo_render
         streams = sum(1 for o in doc.objects if isinstance(o, pikepdf.Stream)
                       and o.get("/Type") == "/EmbeddedFile")
         manifest = json.loads(doc.attachments["manifest.json"].get_file().read_bytes())
-    assert names == ["job.toml", "manifest.json", "results.json"]
+    assert names == ["environment.lock", "job.toml", "manifest.json", "results.json"]
     assert streams == len(names)  # an independent count: every embedded stream is listed
     assert manifest["attachments"] == []
     dest = tmp_path / "extracted"
@@ -487,7 +487,7 @@ def test_the_self_check_refuses_a_pdf_whose_embedded_files_differ_from_the_manif
     from reportgen.testing import compute
 
     doc = compute(make_job(PUMP))
-    listed = ["job.toml", "manifest.json", "results.json"]
+    listed = ["environment.lock", "job.toml", "manifest.json", "results.json"]
     self_check(plain_package.read_bytes(), doc, embedded=listed)  # the honest PDF passes
     with pytest.raises(RenderError, match="the manifest lists"):
         self_check(plain_package.read_bytes(), doc, embedded=listed + ["survey.csv"])
