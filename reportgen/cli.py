@@ -47,6 +47,8 @@ def _parser() -> argparse.ArgumentParser:
     d = sub.add_parser("demo", help="build the bundled sample calc set")
     d.add_argument("--out", type=Path, default=Path("out"), help="output folder (default ./out)")
     d.add_argument("--jobs", type=int, default=None, help="worker processes")
+    d.add_argument("--force", action="store_true",
+                   help="replace files of an earlier demo in the output folder")
     common(d)
 
     pl = sub.add_parser("plugins", help="list calc types, their plugin package, version and inputs")
@@ -77,6 +79,10 @@ def _parser() -> argparse.ArgumentParser:
     df.add_argument("old", type=Path)
     df.add_argument("new", type=Path)
     common(df)
+
+    sc = sub.add_parser("completion", help="print a shell completion script (bash or zsh)")
+    sc.add_argument("shell", choices=("bash", "zsh"))
+    common(sc)
 
     n = sub.add_parser("new-plugin", help="scaffold a pip-installable in-house calc plugin")
     n.add_argument("name", help="plugin name, e.g. acme_pump_base")
@@ -117,15 +123,41 @@ def main(argv: Sequence[str] | None = None) -> int:
         _print_error(exc)
         return int(exc.exit_code)
     except KeyboardInterrupt:
-        print(f"{PROG}: interrupted; no partial package was left under a final name",
-              file=sys.stderr)
+        print(f"{PROG}: {_interrupted()}", file=sys.stderr)
         return 130
+    except BrokenPipeError:
+        return _stdout_gone()
     except Exception as exc:  # a bug: say so plainly, traceback only on request
         if debug:
             traceback.print_exc()
         print(f"{PROG}: internal error: {type(exc).__name__}: {exc}"
               " (run with --debug for the traceback)", file=sys.stderr)
         return int(ExitCode.FAILURE)
+
+
+def _interrupted() -> str:
+    """What an interrupt left on disk, in words: exactly the files this run committed."""
+    from .outputs import committed
+
+    if not committed:
+        return "interrupted; nothing was committed (no file was written under a final name)"
+    names = ", ".join(str(p) for p in committed)
+    return f"interrupted after committing {names}; nothing else was written"
+
+
+def _stdout_gone() -> int:
+    """The reader of our output left (``reportgen plugins | head -1``): stop quietly.
+
+    Exit 141, as a process that SIGPIPE ended reports in a shell; stdout is pointed at
+    the null device so the final flush cannot raise again.
+    """
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError):
+        pass
+    return 141
 
 
 @contextlib.contextmanager
@@ -186,6 +218,11 @@ def _dispatch(args: argparse.Namespace) -> int:
         from .diff import diff_command
 
         return diff_command(args.old, args.new)
+    if cmd == "completion":
+        import shtab  # only here: start-up stays light
+
+        print(shtab.complete(_parser(), shell=args.shell), end="")
+        return int(ExitCode.OK)
     if cmd == "new-plugin":
         from .scaffold import new_plugin
 

@@ -15,12 +15,19 @@ from typing import Any
 from .errors import ExitCode, JobError
 
 
-def _client(scheduler: str | None, workers: int):
+def require_dask():
+    """The ``dask.distributed`` module, or exit 2 with the install hint."""
     try:
-        from dask.distributed import Client, LocalCluster
-    except ImportError:
+        import dask.distributed
+    except ImportError:  # not installed, or installed without its distributed part
         raise JobError("--executor dask needs dask.distributed: pip install 'reportgen[dask]'"
                        ) from None
+    return dask.distributed
+
+
+def _client(scheduler: str | None, workers: int):
+    dd = require_dask()
+    Client, LocalCluster = dd.Client, dd.LocalCluster
     if scheduler:
         try:
             return Client(scheduler, timeout="20s"), None
@@ -44,8 +51,7 @@ def run_on_dask(func: Callable[..., dict[str, Any]], items: list[tuple], *,
                 scheduler: str | None = None, on_done: Callable[[dict[str, Any]], None] | None
                 = None, workers: int = 1) -> list[dict[str, Any]]:
     """Run ``func(*item)`` for each item on Dask; return outcomes in item order."""
-    from dask.distributed import as_completed
-
+    as_completed = require_dask().as_completed
     client, cluster = _client(scheduler, workers)
     outcomes: dict[int, dict[str, Any]] = {}
     try:
