@@ -72,7 +72,7 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
     else:
         import multiprocessing
 
-        from .lifeline import pool_initializer
+        from .lifeline import children_start_deaf, pool_initializer
 
         ctx = multiprocessing.get_context("spawn")
         order = list(range(len(items)))
@@ -82,7 +82,8 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
                                    initializer=pool_initializer,
                                    initargs=(os.getpid(), _leave_fast))
         try:
-            futures = {pool.submit(func, *items[i]): i for i in order}
+            with children_start_deaf():  # the workers start on these submissions
+                futures = {pool.submit(func, *items[i]): i for i in order}
             for fut in as_completed(futures):
                 outcomes[futures[fut]] = fut.result()
                 if on_done:

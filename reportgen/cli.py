@@ -114,6 +114,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return ExitCode.INVALID_INPUT
     debug = bool(getattr(args, "debug", False))
+    if args.command in ("build", "demo", "verify"):
+        from .lifeline import install_fork_hook
+
+        install_fork_hook()  # every helper process dies with this one
     try:
         with _terminate_as_interrupt(args.command in ("build", "demo")):
             return int(_dispatch(args))
@@ -241,7 +245,17 @@ def run() -> None:
     ``main`` returns; what is left is freeing the laid-out document, one cyclic garbage
     collection over millions of objects (~0.7 s for 78 pages). The process ends instead.
     """
-    leave_now(main())
+    try:
+        code = main()
+    except SystemExit as exc:  # argparse's --help, --version and usage errors
+        code = exc.code if isinstance(exc.code, int) else int(exc.code is not None)
+    except BrokenPipeError:
+        code = _stdout_gone()
+    try:
+        sys.stdout.flush()  # a pipe is block-buffered: this is where a gone reader shows
+    except BrokenPipeError:
+        code = _stdout_gone()
+    leave_now(code)
 
 
 def leave_now(code: int) -> None:
