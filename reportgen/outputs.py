@@ -11,6 +11,7 @@ command's own process commits: helper processes hand their bytes back.
 from __future__ import annotations
 
 import contextlib
+import errno
 import glob
 import hashlib
 import json
@@ -235,6 +236,7 @@ def stage(target: Path, data: bytes) -> Staged:
 def commit_outputs(outputs: list[tuple[Path, bytes]], *, journal: Path | None = None,
                    locks: Iterable[Path] = ()) -> None:
     """Write every output to a synced temporary file, then commit them all together."""
+    _check_targets([target for target, _ in outputs])
     staged: list[Staged] = []
     try:
         for target, data in outputs:
@@ -244,6 +246,13 @@ def commit_outputs(outputs: list[tuple[Path, bytes]], *, journal: Path | None = 
         for s in staged:
             discard(s.temp)  # already renamed ones are simply gone
         raise
+
+
+def _check_targets(targets: list[Path]) -> None:
+    """A rename onto a folder fails half way through a commit: refuse it before."""
+    for target in targets:
+        if os.path.isdir(target) and not os.path.islink(target):
+            raise IsADirectoryError(errno.EISDIR, "a folder has the file's name", str(target))
 
 
 def journal_path(out_dir: Path, name: str) -> Path:
@@ -269,6 +278,7 @@ def commit_staged(staged: list[Staged], *, journal: Path | None = None,
               "files": [{"temp": s.temp.name, "final": s.final.name, "sha256": s.sha256}
                         for s in staged]}
     data = (json.dumps(record, indent=1) + "\n").encode("utf-8")
+    _check_targets([s.final for s in staged])
     with interrupts_held():
         atomic_write(journal, data)
         for s in staged:  # a failure here leaves the journal: the next recover completes it
