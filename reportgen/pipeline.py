@@ -225,8 +225,12 @@ class MadePackage:
     date: str
 
 
-def make_package(path: Path, plugins: PluginSet, opts: BuildOptions) -> MadePackage:
-    """Compute, render and self-check one job; write nothing (see :func:`commit_package`)."""
+def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
+                 before=None) -> MadePackage:
+    """Compute, render and self-check one job; write nothing (see :func:`commit_package`).
+
+    ``before()`` runs here before the compute, or, with a split, while the child starts it.
+    """
     from .split import can_split, run_split_stream
 
     later: Later | None = None
@@ -235,9 +239,16 @@ def make_package(path: Path, plugins: PluginSet, opts: BuildOptions) -> MadePack
         # still drawing arrive while the layout runs (reportgen.split)
         from .render.pdf import preload_renderer
 
+        def meanwhile() -> None:
+            if before is not None:
+                before()
+            preload_renderer()
+
         prep, later = run_split_stream(
-            lambda: prepare_package(path, plugins, opts, later=True), preload_renderer)
+            lambda: prepare_package(path, plugins, opts, later=True), meanwhile)
     else:
+        if before is not None:
+            before()
         prep, rest = prepare_package(path, plugins, opts, preload=True)
         for _ in rest:  # nothing is left for later here; this stops the workers
             pass
@@ -321,8 +332,8 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
     """Build one job and commit its files (the command's process does both)."""
     claim = Claim.open(opts.out_dir)
     try:
-        claim_package(path, opts, claim)
-        return commit_package(make_package(path, plugins, opts), opts, claim)
+        made = make_package(path, plugins, opts, before=lambda: claim_package(path, opts, claim))
+        return commit_package(made, opts, claim)
     finally:
         claim.release()
 
