@@ -193,7 +193,7 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
     interrupt or failure before it leaves the output folder as it was.
     """
     from .commands import job_files
-    from .outputs import Claim, package_files, preflight, recover
+    from .outputs import Claim, package_files, preflight, recover, sweep_stale_parts
     from .pipeline import check_out_dir
 
     files = job_files([folder])
@@ -213,6 +213,7 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
             targets += [pdf, results, *html]
         registers = [out_dir / REGISTER_JSON, out_dir / REGISTER_PDF]
         preflight(folder, registers)
+        sweep_stale_parts(out_dir, targets)  # what killed builds of these packages left
         if demo and not opts.force:  # the demo writes into ./out: never over a user's files
             for target in [*targets, *registers]:
                 if os.path.lexists(target):
@@ -227,7 +228,6 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
             for s in items:
                 discard(s.temp)
         claim.release()
-
 
 
 def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: str,
@@ -256,7 +256,14 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
             outcome["pdf"] = str(out_dir / f"{outcome['stem']}.pdf")
             outcome["results"] = str(out_dir / f"{outcome['stem']}.results.json")
             # staged as it comes: the bytes do not pile up here
-            staged[outcome["job"]] = [stage(out_dir / name, data) for name, data in outputs]
+            items = staged[outcome["job"]] = []
+            try:
+                for name, data in outputs:
+                    items.append(stage(out_dir / name, data))
+            except OSError as exc:
+                outcome.update(ok=False, exit_code=int(ExitCode.INVALID_INPUT),
+                               error=f"cannot write the package into {out_dir}:"
+                               f" {exc.strerror or exc}")
         progress.update(outcome)
 
     try:
@@ -336,9 +343,15 @@ def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
                 (out_dir / REGISTER_PDF, register_pdf(rows))]
     items = [s for o in built for s in staged[o["job"]]]
     journal = journal_path(out_dir, "register")
-    sweep_stale_parts(out_dir, [s.final for s in items] + [p for p, _ in register] + [journal])
-    staged["register"] = [stage(p, d) for p, d in register]
-    commit_staged(items + staged["register"], journal=journal, locks=claim.locks)
+    # the register's leftovers only (under its lock): the packages' own temporaries
+    # were staged here, some longer ago than a stale one is
+    sweep_stale_parts(out_dir, [p for p, _ in register] + [journal])
+    try:
+        staged["register"] = [stage(p, d) for p, d in register]
+        commit_staged(items + staged["register"], journal=journal, locks=claim.locks)
+    except OSError as exc:
+        raise JobError(Problem(str(out_dir), f"cannot write the packages and the register:"
+                               f" {exc.strerror or exc}", field="--out")) from None
     staged.clear()
     return built
 
