@@ -319,6 +319,9 @@ def recover(out_dir: Path) -> list[str]:
             else:
                 if _read_journal(journal) == record:  # still there: its writer is gone
                     notes.append(_finish(out_dir, journal, record))
+        except OSError as exc:  # a read-only folder, say: the next writer will do it
+            notes.append(f"could not finish the commit that a stopped build left in"
+                         f" {out_dir} ({journal.name}): {exc.strerror or exc}")
         finally:
             for path in taken:
                 unlock(path)
