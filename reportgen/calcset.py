@@ -333,14 +333,8 @@ def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
         built.append(o)
     if not built:
         return built
-    from .render.register import register_pdf
-
     claim.wait("register")
-    rows = register_rows(built)
-    data = {"format": REGISTER_FORMAT, "packages": rows}
-    register = [(out_dir / REGISTER_JSON,
-                 (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8")),
-                (out_dir / REGISTER_PDF, register_pdf(rows))]
+    register = register_files(out_dir, built)
     items = [s for o in built for s in staged[o["job"]]]
     journal = journal_path(out_dir, "register")
     # the register's leftovers only (under its lock): the packages' own temporaries
@@ -371,13 +365,12 @@ def register_rows(built: Iterable[dict[str, Any]]) -> list[dict[str, Any]]:
     return sorted(rows, key=lambda r: (r["calc_number"], r["revision"]))
 
 
-def write_register(out_dir: Path, built: list[dict[str, Any]]) -> None:
-    """Write a register of ``built`` packages (both files committed together)."""
-    from .outputs import commit_outputs
+def register_files(out_dir: Path, built: list[dict[str, Any]]) -> list[tuple[Path, bytes]]:
+    """The set's register of ``built`` packages: (path, bytes) of its JSON and its PDF."""
     from .render.register import register_pdf
 
     rows = register_rows(built)
     data = {"format": REGISTER_FORMAT, "packages": rows}
-    commit_outputs([(out_dir / REGISTER_JSON,
-                     (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8")),
-                    (out_dir / REGISTER_PDF, register_pdf(rows))])
+    return [(out_dir / REGISTER_JSON,
+             (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8")),
+            (out_dir / REGISTER_PDF, register_pdf(rows))]

@@ -284,3 +284,29 @@ def test_dask_scheduler_in_another_folder_with_relative_paths(tmp_path):
     assert not (cluster / "out").exists() and not (cluster / "jobs").exists()
     assert "out/QEP-2417-V-300-A.pdf" in proc.stdout  # reported as the user named it
     assert_not_torn(work / "out")
+
+
+WATCHED_CHILD = r"""
+import os, sys, time
+from reportgen import lifeline
+
+lifeline._set_death_signal = lambda: False  # as where the kernel has no death signal
+parent = os.getpid()
+pid = os.fork()
+if pid == 0:
+    lifeline.bind_to_parent(parent)
+    time.sleep(60)
+    os._exit(0)
+print(pid, flush=True)
+os._exit(0)  # the parent dies at once
+"""
+
+
+def test_the_portable_watcher_ends_a_helper_whose_parent_died():
+    from hardening_c_support import MARK
+
+    mark = f"watch-{os.getpid()}-{time.monotonic_ns()}"
+    proc = subprocess.run([sys.executable, "-c", WATCHED_CHILD], capture_output=True,
+                          text=True, timeout=60, env={**os.environ, MARK: mark})
+    assert proc.returncode == 0 and proc.stdout.strip().isdigit(), proc.stderr
+    assert not wait_gone(mark, 2.0), "the helper outlived its parent by 2 s"
