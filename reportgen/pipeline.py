@@ -240,9 +240,9 @@ def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
         from .render.pdf import preload_renderer
 
         def meanwhile() -> None:
-            if before is not None:
-                before()
             preload_renderer()
+            if before is not None:  # while the child still computes: off the critical path
+                before()
 
         prep, later = run_split_stream(
             lambda: prepare_package(path, plugins, opts, later=True), meanwhile)
@@ -304,18 +304,23 @@ def commit_package(made: MadePackage, opts: BuildOptions, claim: Claim) -> Build
     out_dir = opts.out_dir
     check_out_dir(out_dir, made.job)
     lock = claim.package(made.job, made.calc_number, made.revision, made.stem)
-    targets = [out_dir / name for name, _ in made.outputs]
+    outputs = [(out_dir / name, data) for name, data in made.outputs]
     try:
         for note in recover(out_dir):
             print(f"note: {note}", file=sys.stderr)
         if not opts.force:
             refuse_existing(made.job, [out_dir / f"{made.stem}.pdf",
                                        out_dir / f"{made.stem}.results.json"])
-        preflight(made.job, targets)
+        preflight(made.job, [target for target, _ in outputs])
         journal = journal_path(out_dir, made.stem)
-        sweep_stale_parts(out_dir, [*targets, journal])
-        commit_outputs([(out_dir / name, data) for name, data in made.outputs],
-                       journal=journal, locks=[lock])
+        sweep_stale_parts(out_dir, [*(target for target, _ in outputs), journal])
+        locks = [lock]
+        if (out_dir / "register.json").exists():  # a set's register that lists it, too
+            from .calcset import register_with
+
+            locks.append(claim.wait("register"))
+            outputs += register_with(out_dir, made)
+        commit_outputs(outputs, journal=journal, locks=locks)
     except OSError as exc:
         raise JobError(Problem(str(made.job), f"cannot write the package into {out_dir}:"
                                f" {exc.strerror or exc}", field="--out")) from None

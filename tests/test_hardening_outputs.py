@@ -248,3 +248,18 @@ def test_a_set_commits_packages_and_register_together(tmp_path, capsys):
         assert row["sha256"] == hashlib.sha256((out / row["file"]).read_bytes()).hexdigest()
     assert_not_torn(out)
     assert os.path.getsize(out / "register.pdf") > 0
+
+
+def test_a_single_build_of_a_set_member_brings_the_register_up_to_date(tmp_path):
+    jobs = tmp_path / "jobs"
+    write_jobs(jobs, 2)
+    out = tmp_path / "out"
+    assert main(["build", str(jobs), "--out", str(out), "--jobs", "1"]) in (0, 1)
+    before = json.loads((out / "register.json").read_text(encoding="utf-8"))["packages"]
+    (jobs / "job-0.toml").write_text(job_text(calc="QEP-2417-V-300", mass=1700, n="p0"),
+                                     encoding="utf-8")
+    assert main(["build", str(jobs / "job-0.toml"), "--out", str(out), "--force"]) in (0, 1)
+    after = json.loads((out / "register.json").read_text(encoding="utf-8"))["packages"]
+    assert after[1] == before[1]  # the other package's row is untouched
+    assert after[0]["sha256"] != before[0]["sha256"]
+    assert_not_torn(out)  # every row's hash is that of the PDF on disk
