@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import os
 import sys
 from collections.abc import Callable, Iterable
 from concurrent.futures import ProcessPoolExecutor, as_completed
@@ -13,37 +14,39 @@ from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
-from .errors import ExitCode, ReportgenError
+from .errors import ExitCode, JobError, Problem, ReportgenError
+from .outputs import refuse_existing
 from .pipeline import BuildOptions
 
 REGISTER_FORMAT = "reportgen.register/1"
+REGISTER_JSON, REGISTER_PDF = "register.json", "register.pdf"
 
 
 def build_one(path: str, opts: dict[str, Any]) -> dict[str, Any]:
-    """Build one job in this process; never raises (the outcome is data)."""
+    """Make one job's package in this process and return its bytes in the outcome; never
+    raises (the outcome is data) and writes nothing: the command commits."""
     from .commands import error_text, load_plugins
-    from .pipeline import build_job
+    from .pipeline import make_package
 
     values: dict[str, Any] = {k: (Path(v) if k in ("out_dir", "cache_dir", "template_dir")
                                   and v is not None else v) for k, v in opts.items()}
     options = BuildOptions(**values)
     try:
-        result = build_job(Path(path), load_plugins(), options)
+        made = make_package(Path(path), load_plugins(), options)
     except ReportgenError as exc:
         return {"job": path, "ok": False, "exit_code": int(exc.exit_code),
                 "error": error_text(exc)}
     except Exception as exc:  # a bug in one job must not stop the set
         return {"job": path, "ok": False, "exit_code": int(ExitCode.FAILURE),
                 "error": error_text(exc)}
-    pdf_hash = hashlib.sha256(result.pdf.read_bytes()).hexdigest()
-    return {"job": path, "ok": True, "exit_code": int(result.exit_code),
-            "pdf": str(result.pdf), "results": str(result.results),
-            "calc_number": result.calc_number, "revision": result.revision,
-            "title": result.title, "status": result.status,
-            "checks_total": result.checks_total, "checks_failed": result.checks_failed,
-            "checks_passed": result.checks_total - result.checks_failed,
-            "review_state": result.review_state, "sha256": pdf_hash,
-            "date": result.extra.get("date", "")}
+    pdf = dict(made.outputs)[f"{made.stem}.pdf"]
+    return {"job": path, "ok": True, "exit_code": int(made.exit_code), "stem": made.stem,
+            "outputs": made.outputs, "calc_number": made.calc_number,
+            "revision": made.revision, "title": made.title, "status": made.status,
+            "checks_total": made.checks_total, "checks_failed": made.checks_failed,
+            "checks_passed": made.checks_total - made.checks_failed,
+            "review_state": made.review_state, "sha256": hashlib.sha256(pdf).hexdigest(),
+            "date": made.date}
 
 
 def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, workers: int,
@@ -53,7 +56,8 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
     """Run ``func(*item)`` for each item; return outcomes in item order.
 
     With ``cost``, local workers take the costliest items first, so the set does not end
-    with one worker on a large package while the others wait.
+    with one worker on a large package while the others wait. The workers die with this
+    process and ignore Ctrl-C: on an interrupt or error here they are stopped at once.
     """
     outcomes: dict[int, dict[str, Any]] = {}
     if executor == "dask":
@@ -68,18 +72,37 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
     else:
         import multiprocessing
 
+        from .lifeline import children_start_deaf, pool_initializer
+
         ctx = multiprocessing.get_context("spawn")
         order = list(range(len(items)))
         if cost is not None:
             order.sort(key=lambda i: -cost(items[i]))
-        with ProcessPoolExecutor(max_workers=min(workers, len(items)), mp_context=ctx,
-                                 initializer=_leave_fast) as pool:
-            futures = {pool.submit(func, *items[i]): i for i in order}
+        pool = ProcessPoolExecutor(max_workers=min(workers, len(items)), mp_context=ctx,
+                                   initializer=pool_initializer,
+                                   initargs=(os.getpid(), _leave_fast))
+        try:
+            with children_start_deaf():  # the workers start on these submissions
+                futures = {pool.submit(func, *items[i]): i for i in order}
             for fut in as_completed(futures):
                 outcomes[futures[fut]] = fut.result()
                 if on_done:
                     on_done(outcomes[futures[fut]])
+        except BaseException:
+            stop_pool(pool)
+            raise
+        pool.shutdown(wait=True)
     return [outcomes[i] for i in range(len(items))]
+
+
+def stop_pool(pool: ProcessPoolExecutor) -> None:
+    """End a pool's workers now, mid-task (they commit nothing), and reap them."""
+    for proc in list((getattr(pool, "_processes", None) or {}).values()):
+        try:
+            proc.kill()
+        except (OSError, AttributeError):
+            pass
+    pool.shutdown(wait=True, cancel_futures=True)
 
 
 def _leave_fast() -> None:
@@ -135,12 +158,84 @@ def describe(outcome: dict[str, Any]) -> str:
     return f"built {outcome['pdf']} [{verdict}; {outcome['review_state']}]"
 
 
+def set_names(files: list[Path]) -> dict[Path, tuple[str, str, str]]:
+    """Each job's (calc number, revision, stem); refuse (exit 2, before anything is built)
+    jobs that would write the same file, or names that differ only in case (one file on a
+    case-insensitive file system)."""
+    from .outputs import package_names
+
+    names = {p: n for p in files if (n := package_names(p)) is not None}
+    by_stem: dict[str, list[Path]] = {}
+    for path, (_calc, _rev, stem) in names.items():
+        by_stem.setdefault(stem.casefold(), []).append(path)
+    problems = []
+    for paths in by_stem.values():
+        if len(paths) > 1:
+            calc, rev, stem = names[paths[0]]
+            same = all(names[p][2] == stem for p in paths)
+            what = (f"calc {calc} revision {rev} (file {stem}.pdf)" if same else
+                    "file names that differ only in case ("
+                    + ", ".join(sorted({names[p][2] + '.pdf' for p in paths})) + ")")
+            problems.append(Problem(", ".join(map(str, paths)),
+                                    f"these jobs share {what}; each package of a set needs"
+                                    " its own calc number and revision"))
+    if problems:
+        raise JobError(problems)
+    return names
+
+
 def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: str = "local",
                  scheduler: str | None = None, demo: bool = False) -> int:
+    """Build every job of ``folder`` and commit the packages and the register together.
+
+    The workers hand back each package's bytes; they are staged here as they come, and
+    the one commit at the end renames every package and the register into place. An
+    interrupt or failure before it leaves the output folder as it was.
+    """
     from .commands import job_files
+    from .outputs import Claim, package_files, preflight, recover, sweep_stale_parts
+    from .pipeline import check_out_dir
 
     files = job_files([folder])
-    opts_dict = {k: (str(v) if isinstance(v, Path) else v) for k, v in asdict(opts).items()}
+    names = set_names(files)
+    out_dir = opts.out_dir
+    check_out_dir(out_dir, folder)
+    claim = Claim.open(out_dir)
+    staged: dict[str, list] = {}
+    targets: list[Path] = []
+    try:
+        for note in recover(out_dir):
+            print(f"note: {note}", file=sys.stderr)
+        for path, (calc, rev, stem) in names.items():
+            claim.package(path, calc, rev, stem)
+            results, pdf, *html = package_files(out_dir, stem, opts.html)
+            preflight(path, [pdf, results, *html])
+            targets += [pdf, results, *html]
+        registers = [out_dir / REGISTER_JSON, out_dir / REGISTER_PDF]
+        preflight(folder, registers)
+        sweep_stale_parts(out_dir, targets)  # what killed builds of these packages left
+        if demo and not opts.force:  # the demo writes into ./out: never over a user's files
+            for target in [*targets, *registers]:
+                if os.path.lexists(target):
+                    raise JobError(Problem(str(target), "already exists; reportgen demo"
+                                           " replaces files only with --force (or give"
+                                           " another --out folder)"))
+        return _build_set(files, opts, workers, executor, scheduler, claim, staged)
+    finally:
+        from .outputs import discard
+
+        for items in staged.values():  # whatever was not committed
+            for s in items:
+                discard(s.temp)
+        claim.release()
+
+
+def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: str,
+               scheduler: str | None, claim, staged: dict[str, list]) -> int:
+    from .outputs import stage
+
+    out_dir = opts.out_dir
+    opts_dict = worker_options(opts)
     if workers > 1 or executor != "local":
         # The packages are built elsewhere; this process lays out only the register at
         # the end. Its renderer loads meanwhile (~0.6 s of CPU spread over the build,
@@ -152,20 +247,38 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
         threading.Thread(target=preload_renderer, name="reportgen-preload",
                          daemon=True).start()
     progress = Progress(len(files), "building")
+    as_named = {str(p.absolute()): str(p) for p in files}
+
+    def done(outcome: dict[str, Any]) -> None:
+        outcome["job"] = as_named.get(outcome["job"], outcome["job"])
+        outputs = outcome.pop("outputs", None)
+        if outcome.get("ok"):
+            outcome["pdf"] = str(out_dir / f"{outcome['stem']}.pdf")
+            outcome["results"] = str(out_dir / f"{outcome['stem']}.results.json")
+            # staged as it comes: the bytes do not pile up here
+            items = staged[outcome["job"]] = []
+            try:
+                for name, data in outputs:
+                    items.append(stage(out_dir / name, data))
+            except OSError as exc:
+                outcome.update(ok=False, exit_code=int(ExitCode.INVALID_INPUT),
+                               error=f"cannot write the package into {out_dir}:"
+                               f" {exc.strerror or exc}")
+        progress.update(outcome)
+
     try:
-        outcomes = run_tasks(build_one, [(str(p), opts_dict) for p in files], workers=workers,
-                             executor=executor, scheduler=scheduler, on_done=progress.update,
-                             cost=_job_size)
+        outcomes = run_tasks(build_one, [(str(p.absolute()), opts_dict) for p in files],
+                             workers=workers, executor=executor, scheduler=scheduler,
+                             on_done=done, cost=_job_size)
     finally:
         progress.close()
+    built = _commit_set(outcomes, opts, claim, staged)
     for o in outcomes:
         if not o.get("ok"):
             for line in o["error"].splitlines():
                 print(f"error: {line}", file=sys.stderr)
-    built = [o for o in outcomes if o.get("ok")]
     if built:
-        write_register(opts.out_dir, built)
-        print(f"register: {opts.out_dir / 'register.pdf'}  {opts.out_dir / 'register.json'}")
+        print(f"register: {out_dir / REGISTER_PDF}  {out_dir / REGISTER_JSON}")
     n_bad = len(outcomes) - len(built)
     print(f"{len(built)} of {len(outcomes)} packages built"
           + (f"; {n_bad} not built" if n_bad else "")
@@ -174,6 +287,67 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
         codes = [o["exit_code"] for o in outcomes]
         return max(codes)
     return max(o["exit_code"] for o in outcomes)
+
+
+def worker_options(opts: BuildOptions) -> dict[str, Any]:
+    """The build options as a worker gets them: every path absolute, the cache folder
+    named, so a worker in another folder (a Dask worker) reads and writes the same."""
+    from .cache import default_cache_dir
+
+    values = asdict(opts)
+    if opts.use_cache and opts.cache_dir is None:
+        values["cache_dir"] = default_cache_dir()
+    return {k: (str(v.absolute()) if isinstance(v, Path) else v) for k, v in values.items()}
+
+
+def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
+                staged: dict[str, list]) -> list[dict[str, Any]]:
+    """Commit every built package and the register as one; return the committed ones.
+
+    A package that cannot be committed (it appeared meanwhile without --force, or its job
+    file changed its name) is reported as not built instead.
+    """
+    from .errors import ExitCode
+    from .outputs import commit_staged, journal_path, recover, stage, sweep_stale_parts
+
+    out_dir = opts.out_dir
+    for note in recover(out_dir):
+        print(f"note: {note}", file=sys.stderr)
+    built, seen = [], set()
+    for o in outcomes:
+        if not o.get("ok"):
+            continue
+        try:
+            if o["stem"].casefold() in seen:
+                raise JobError(Problem(o["job"], f"another job of the set also writes"
+                                       f" {o['stem']}.pdf"))
+            claim.package(Path(o["job"]), o["calc_number"], o["revision"], o["stem"])
+            if not opts.force:
+                refuse_existing(Path(o["job"]), [Path(o["pdf"]), Path(o["results"])])
+        except JobError as exc:
+            from .commands import error_text
+
+            o.update(ok=False, exit_code=int(ExitCode.INVALID_INPUT), error=error_text(exc))
+            continue
+        seen.add(o["stem"].casefold())
+        built.append(o)
+    if not built:
+        return built
+    claim.wait("register")
+    register = register_files(out_dir, register_rows(built))
+    items = [s for o in built for s in staged[o["job"]]]
+    journal = journal_path(out_dir, "register")
+    # the register's leftovers only (under its lock): the packages' own temporaries
+    # were staged here, some longer ago than a stale one is
+    sweep_stale_parts(out_dir, [p for p, _ in register] + [journal])
+    try:
+        staged["register"] = [stage(p, d) for p, d in register]
+        commit_staged(items + staged["register"], journal=journal, locks=claim.locks)
+    except OSError as exc:
+        raise JobError(Problem(str(out_dir), f"cannot write the packages and the register:"
+                               f" {exc.strerror or exc}", field="--out")) from None
+    staged.clear()
+    return built
 
 
 def _job_size(item: tuple) -> float:
@@ -191,13 +365,33 @@ def register_rows(built: Iterable[dict[str, Any]]) -> list[dict[str, Any]]:
     return sorted(rows, key=lambda r: (r["calc_number"], r["revision"]))
 
 
-def write_register(out_dir: Path, built: list[dict[str, Any]]) -> None:
-    from .pipeline import atomic_write
+def register_files(out_dir: Path, rows: list[dict[str, Any]]) -> list[tuple[Path, bytes]]:
+    """A register of ``rows`` (see register_rows): (path, bytes) of its JSON and its PDF."""
     from .render.register import register_pdf
 
-    rows = register_rows(built)
     data = {"format": REGISTER_FORMAT, "packages": rows}
-    atomic_write(out_dir / "register.json",
-                 (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8"))
-    atomic_write(out_dir / "register.pdf", register_pdf(rows))
+    return [(out_dir / REGISTER_JSON,
+             (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8")),
+            (out_dir / REGISTER_PDF, register_pdf(rows))]
 
+
+def register_with(out_dir: Path, made) -> list[tuple[Path, bytes]]:
+    """The folder's register with the row of the package ``made`` brought up to date,
+    or [] if the folder has no register that lists it. A single build of one package of
+    a set commits this with the package, so the register's hashes stay those on disk."""
+    try:
+        data = json.loads((out_dir / REGISTER_JSON).read_bytes())
+        rows = list(data["packages"])
+        index = [r.get("file") for r in rows].index(f"{made.stem}.pdf")
+    except (OSError, ValueError, KeyError, TypeError, AttributeError):
+        return []
+    if data.get("format") != REGISTER_FORMAT:
+        return []
+    pdf = dict(made.outputs)[f"{made.stem}.pdf"]
+    rows[index] = register_rows([{
+        "calc_number": made.calc_number, "revision": made.revision, "date": made.date,
+        "title": made.title, "status": made.status,
+        "checks_passed": made.checks_total - made.checks_failed,
+        "checks_failed": made.checks_failed, "review_state": made.review_state,
+        "sha256": hashlib.sha256(pdf).hexdigest(), "pdf": f"{made.stem}.pdf"}])[0]
+    return register_files(out_dir, rows)

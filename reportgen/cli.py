@@ -47,6 +47,8 @@ def _parser() -> argparse.ArgumentParser:
     d = sub.add_parser("demo", help="build the bundled sample calc set")
     d.add_argument("--out", type=Path, default=Path("out"), help="output folder (default ./out)")
     d.add_argument("--jobs", type=int, default=None, help="worker processes")
+    d.add_argument("--force", action="store_true",
+                   help="replace files of an earlier demo in the output folder")
     common(d)
 
     pl = sub.add_parser("plugins", help="list calc types, their plugin package, version and inputs")
@@ -78,6 +80,10 @@ def _parser() -> argparse.ArgumentParser:
     df.add_argument("new", type=Path)
     common(df)
 
+    sc = sub.add_parser("completion", help="print a shell completion script (bash or zsh)")
+    sc.add_argument("shell", choices=("bash", "zsh"))
+    common(sc)
+
     n = sub.add_parser("new-plugin", help="scaffold a pip-installable in-house calc plugin")
     n.add_argument("name", help="plugin name, e.g. acme_pump_base")
     n.add_argument("--dir", type=Path, default=None, help="where to write it (default ./NAME)")
@@ -108,6 +114,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return ExitCode.INVALID_INPUT
     debug = bool(getattr(args, "debug", False))
+    if args.command in ("build", "demo", "verify"):
+        from .lifeline import install_fork_hook
+
+        install_fork_hook()  # every helper process dies with this one
     try:
         with _terminate_as_interrupt(args.command in ("build", "demo")):
             return int(_dispatch(args))
@@ -117,15 +127,41 @@ def main(argv: Sequence[str] | None = None) -> int:
         _print_error(exc)
         return int(exc.exit_code)
     except KeyboardInterrupt:
-        print(f"{PROG}: interrupted; no partial package was left under a final name",
-              file=sys.stderr)
+        print(f"{PROG}: {_interrupted()}", file=sys.stderr)
         return 130
+    except BrokenPipeError:
+        return _stdout_gone()
     except Exception as exc:  # a bug: say so plainly, traceback only on request
         if debug:
             traceback.print_exc()
         print(f"{PROG}: internal error: {type(exc).__name__}: {exc}"
               " (run with --debug for the traceback)", file=sys.stderr)
         return int(ExitCode.FAILURE)
+
+
+def _interrupted() -> str:
+    """What an interrupt left on disk, in words: exactly the files this run committed."""
+    from .outputs import committed
+
+    if not committed:
+        return "interrupted; nothing was committed (no file was written under a final name)"
+    names = ", ".join(str(p) for p in committed)
+    return f"interrupted after committing {names}; nothing else was written"
+
+
+def _stdout_gone() -> int:
+    """The reader of our output left (``reportgen plugins | head -1``): stop quietly.
+
+    Exit 141, as a process that SIGPIPE ended reports in a shell; stdout is pointed at
+    the null device so the final flush cannot raise again.
+    """
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError):
+        pass
+    return 141
 
 
 @contextlib.contextmanager
@@ -193,6 +229,11 @@ def _dispatch(args: argparse.Namespace) -> int:
         from .diff import diff_command
 
         return diff_command(args.old, args.new)
+    if cmd == "completion":
+        import shtab  # only here: start-up stays light
+
+        print(shtab.complete(_parser(), shell=args.shell), end="")
+        return int(ExitCode.OK)
     if cmd == "new-plugin":
         from .scaffold import new_plugin
 
@@ -211,7 +252,17 @@ def run() -> None:
     ``main`` returns; what is left is freeing the laid-out document, one cyclic garbage
     collection over millions of objects (~0.7 s for 78 pages). The process ends instead.
     """
-    leave_now(main())
+    try:
+        code = main()
+    except SystemExit as exc:  # argparse's --help, --version and usage errors
+        code = exc.code if isinstance(exc.code, int) else int(exc.code is not None)
+    except BrokenPipeError:
+        code = _stdout_gone()
+    try:
+        sys.stdout.flush()  # a pipe is block-buffered: this is where a gone reader shows
+    except BrokenPipeError:
+        code = _stdout_gone()
+    leave_now(code)
 
 
 def leave_now(code: int) -> None:

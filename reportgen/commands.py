@@ -99,7 +99,7 @@ def build_command(args) -> int:
 
     if args.command == "demo":
         target = sample_jobs_dir()
-        force, final, html, use_cache, tdir = True, False, False, True, None
+        force, final, html, use_cache, tdir = args.force, False, False, True, None
         executor, scheduler = "local", None
     else:
         target = args.target
@@ -114,6 +114,10 @@ def build_command(args) -> int:
     opts = BuildOptions(out_dir=args.out, force=force, final=final, html=html,
                         use_cache=use_cache, template_dir=tdir.resolve() if tdir else None,
                         workers=1)
+    if executor == "dask":
+        from .distributed import require_dask
+
+        require_dask()  # the install hint now, before anything is built
     if target.is_dir():
         from .calcset import build_folder
 

@@ -15,12 +15,19 @@ from typing import Any
 from .errors import ExitCode, JobError
 
 
-def _client(scheduler: str | None, workers: int):
+def require_dask():
+    """The ``dask.distributed`` module, or exit 2 with the install hint."""
     try:
-        from dask.distributed import Client, LocalCluster
-    except ImportError:
+        import dask.distributed
+    except ImportError:  # not installed, or installed without its distributed part
         raise JobError("--executor dask needs dask.distributed: pip install 'reportgen[dask]'"
                        ) from None
+    return dask.distributed
+
+
+def _client(scheduler: str | None, workers: int):
+    dd = require_dask()
+    Client, LocalCluster = dd.Client, dd.LocalCluster
     if scheduler:
         try:
             return Client(scheduler, timeout="20s"), None
@@ -28,8 +35,30 @@ def _client(scheduler: str | None, workers: int):
             raise JobError(f"cannot reach the Dask scheduler at {scheduler}: {exc}") from None
     # One thread a worker: a package build is CPU-bound Python, so threads would only
     # queue on the interpreter lock; processes give real parallelism.
-    cluster = LocalCluster(n_workers=max(1, workers), threads_per_worker=1, processes=True,
-                           dashboard_address=None)
+    # The workers end with this process even when it is killed, and leave Ctrl-C to it
+    # (reportgen.lifeline): forked from a forkserver that preloads the lifeline, each is
+    # bound from its first instant; the preload binds it to this process once it runs.
+    import os
+
+    import dask
+    from distributed.utils import get_mp_context
+
+    from .lifeline import PARENT_ENV
+
+    before = os.environ.get(PARENT_ENV)
+    os.environ[PARENT_ENV] = str(os.getpid())  # for the forkserver started below
+    try:
+        with dask.config.set({"distributed.worker.multiprocessing-method": "forkserver"}):
+            get_mp_context().set_forkserver_preload(
+                ["reportgen.lifeline", "distributed", "reportgen.calcset", "reportgen.verify"])
+            cluster = LocalCluster(n_workers=max(1, workers), threads_per_worker=1,
+                                   processes=True, dashboard_address=None,
+                                   preload=["reportgen.lifeline"])
+    finally:
+        if before is None:
+            os.environ.pop(PARENT_ENV, None)
+        else:
+            os.environ[PARENT_ENV] = before
     return Client(cluster), cluster
 
 
@@ -44,8 +73,7 @@ def run_on_dask(func: Callable[..., dict[str, Any]], items: list[tuple], *,
                 scheduler: str | None = None, on_done: Callable[[dict[str, Any]], None] | None
                 = None, workers: int = 1) -> list[dict[str, Any]]:
     """Run ``func(*item)`` for each item on Dask; return outcomes in item order."""
-    from dask.distributed import as_completed
-
+    as_completed = require_dask().as_completed
     client, cluster = _client(scheduler, workers)
     outcomes: dict[int, dict[str, Any]] = {}
     try:

@@ -150,6 +150,15 @@ def text_problem(value: str, key: str) -> str | None:
         return (f"{value!r} starts or ends with white space or a line break; a name must not"
                 " (it names files and cross-references)")
     return None
+def file_stem(calc_number: object, revision: object) -> str | None:
+    """``<calc_number>-<revision>``, the package's file stem, or None if either cannot
+    name a file. One stem per pair: a revision has no '-', so a stem splits back into its
+    calc number and revision at its last '-'."""
+    if not (isinstance(calc_number, str) and isinstance(revision, str)):
+        return None
+    if not (_SAFE_NAME.fullmatch(calc_number) and _SAFE_NAME.fullmatch(revision)):
+        return None
+    return None if "-" in revision else f"{calc_number}-{revision}"
 
 
 def _nearest(word: str, options: list[str]) -> str:
@@ -426,6 +435,10 @@ class _Validator:
             if t[key] and not _SAFE_NAME.match(t[key]):
                 self.add(f"'{t[key]}' cannot name a file: use letters, digits, '.', '_' or"
                          " '-' (at most 64)", field=f"package.{key}")
+        if t["revision"] and "-" in t["revision"]:  # keeps file names one per package
+            self.add(f"'{t['revision']}' has a '-': a revision is letters, digits, '.' or"
+                     " '_' (such as A, P1, C02), so that calc number and revision make"
+                     " one file name each", field="package.revision")
         date = self._date(pkg, "date", "package.")
         if "date" not in pkg:
             self.add("required field 'date' is missing: the ISO date of this revision",

@@ -1,18 +1,12 @@
-"""Build one job file into its package: compute, render, self-check, write atomically.
+"""Build one job file into its package: compute, render, self-check, commit.
 
 Nothing is written under a final name until the whole package exists and has passed
-its self-check; outputs go to temporary files in the output folder and are renamed.
+its self-check; then the command's process commits its files together (reportgen.outputs).
 """
 
 from __future__ import annotations
 
-import contextlib
-import glob
-import os
-import signal
-import tempfile
-import threading
-import time
+import sys
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -23,6 +17,19 @@ from .build import compute_document
 from .errors import ExitCode, JobError, Problem
 from .jobfile import Job, load_job
 from .model import Document
+from .outputs import (  # noqa: F401 - STALE_PART_SECONDS, atomic_write: used from here
+    STALE_PART_SECONDS,
+    Claim,
+    atomic_write,
+    commit_outputs,
+    journal_path,
+    package_files,
+    package_names,
+    preflight,
+    recover,
+    refuse_existing,
+    sweep_stale_parts,
+)
 from .plugins import PluginSet
 from .results import results_bytes
 from .split import Later
@@ -168,11 +175,8 @@ def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
     if not opts.force:
-        existing = [p for p in (pdf_path, results_path) if p.exists()]
-        if existing:
-            raise JobError(Problem(str(path), f"{existing[0]} already exists; a package of the"
-                                   " same calc number and revision is replaced only with"
-                                   " --force"))
+        refuse_existing(path, [pdf_path, results_path])
+    preflight(path, [pdf_path, results_path])
     pool = None
     if opts.split and opts.workers > 1:
         from .render.assets import warm_pool
@@ -213,7 +217,30 @@ def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, po
                         prefetched=prefetched, later=later)
 
 
-def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
+@dataclass(frozen=True, kw_only=True)
+class MadePackage:
+    """A package's bytes, made but not written: the command commits them."""
+
+    job: Path
+    calc_number: str
+    revision: str
+    stem: str
+    outputs: list[tuple[str, bytes]]  # (file name in the output folder, bytes)
+    status: str
+    exit_code: ExitCode
+    checks_total: int
+    checks_failed: int
+    review_state: str
+    title: str
+    date: str
+
+
+def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
+                 before=None) -> MadePackage:
+    """Compute, render and self-check one job; write nothing (see :func:`commit_package`).
+
+    ``before()`` runs here before the compute, or, with a split, while the child starts it.
+    """
     from .split import can_split, run_split_stream
 
     later: Later | None = None
@@ -222,44 +249,108 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
         # still drawing arrive while the layout runs (reportgen.split)
         from .render.pdf import preload_renderer
 
+        def meanwhile() -> None:
+            preload_renderer()
+            if before is not None:  # while the child still computes: off the critical path
+                before()
+
         prep, later = run_split_stream(
-            lambda: prepare_package(path, plugins, opts, later=True), preload_renderer)
+            lambda: prepare_package(path, plugins, opts, later=True), meanwhile)
     else:
+        if before is not None:
+            before()
         prep, rest = prepare_package(path, plugins, opts, preload=True)
         for _ in rest:  # nothing is left for later here; this stops the workers
             pass
     try:
         pdf, payloads = package_pdf(prep, later)
+    except BaseException:
+        if later is not None:
+            later.kill()  # the child ignores Ctrl-C: the command stops it
+            later = None
+        raise
     finally:
         if later is not None:
             later.close()
     job, doc = prep.job, prep.doc
-    pdf_path, results_path = output_paths(job, opts.out_dir)
     if opts.self_check:
         from .selfcheck import self_check
 
         self_check(pdf, doc, embedded=[f.name for f in prep.files])
-    outputs = [(results_path, prep.results), (pdf_path, pdf)]
-    html_path = None
+    outputs = [(f"{job.stem}.results.json", prep.results), (f"{job.stem}.pdf", pdf)]
     if opts.html:
         from .render.assets import inline_assets
 
-        html_path = opts.out_dir / f"{job.stem}.html"
-        outputs.insert(0, (html_path, inline_assets(prep.html, payloads).encode("utf-8")))
+        outputs.insert(0, (f"{job.stem}.html",
+                           inline_assets(prep.html, payloads).encode("utf-8")))
+    return MadePackage(job=path, calc_number=job.info.calc_number, revision=job.info.revision,
+                       stem=job.stem, outputs=outputs, status=doc.status,
+                       exit_code=ExitCode.CHECKS_FAIL if doc.failed else ExitCode.OK,
+                       checks_total=len(doc.design_checks), checks_failed=len(doc.failed),
+                       review_state=doc.review_state, title=job.info.title,
+                       date=job.info.date)
+
+
+def claim_package(path: Path, opts: BuildOptions, claim: Claim) -> None:
+    """Before the build: finish what a killed build left in the output folder, take the
+    package's lock, and refuse at once what the commit would refuse."""
+    names = package_names(path)
+    if names is None:
+        return  # the job cannot name its files: loading it reports why
+    check_out_dir(opts.out_dir, path)
+    for note in recover(opts.out_dir):
+        print(f"note: {note}", file=sys.stderr)
+    calc, rev, stem = names
+    claim.package(path, calc, rev, stem)
+    results, pdf, *html = package_files(opts.out_dir, stem, opts.html)
+    if not opts.force:
+        refuse_existing(path, [pdf, results])
+    preflight(path, [pdf, results, *html])
+
+
+def commit_package(made: MadePackage, opts: BuildOptions, claim: Claim) -> BuildResult:
+    """Write a made package's files into the output folder as one commit, under its lock
+    (the existence check is made again there, just before the commit)."""
+    out_dir = opts.out_dir
+    check_out_dir(out_dir, made.job)
+    lock = claim.package(made.job, made.calc_number, made.revision, made.stem)
+    outputs = [(out_dir / name, data) for name, data in made.outputs]
     try:
-        sweep_stale_parts(opts.out_dir, [p for p, _ in outputs])
-        commit_outputs(outputs)
+        for note in recover(out_dir):
+            print(f"note: {note}", file=sys.stderr)
+        if not opts.force:
+            refuse_existing(made.job, [out_dir / f"{made.stem}.pdf",
+                                       out_dir / f"{made.stem}.results.json"])
+        preflight(made.job, [target for target, _ in outputs])
+        journal = journal_path(out_dir, made.stem)
+        sweep_stale_parts(out_dir, [*(target for target, _ in outputs), journal])
+        locks = [lock]
+        if (out_dir / "register.json").exists():  # a set's register that lists it, too
+            from .calcset import register_with
+
+            locks.append(claim.wait("register"))
+            outputs += register_with(out_dir, made)
+        commit_outputs(outputs, journal=journal, locks=locks)
     except OSError as exc:
-        raise JobError(Problem(str(path), f"cannot write the package into {opts.out_dir}:"
-                               f" {exc.strerror or exc}",
-                               field="--out")) from None
-    code = ExitCode.CHECKS_FAIL if doc.failed else ExitCode.OK
-    return BuildResult(job=path, pdf=pdf_path, results=results_path, status=doc.status,
-                       exit_code=code, checks_total=len(doc.design_checks),
-                       checks_failed=len(doc.failed), review_state=doc.review_state,
-                       title=job.info.title, calc_number=job.info.calc_number,
-                       revision=job.info.revision, html=html_path,
-                       extra={"date": job.info.date})
+        raise JobError(Problem(str(made.job), f"cannot write the package into {out_dir}:"
+                               f" {exc.strerror or exc}", field="--out")) from None
+    html = out_dir / f"{made.stem}.html" if opts.html else None
+    return BuildResult(job=made.job, pdf=out_dir / f"{made.stem}.pdf",
+                       results=out_dir / f"{made.stem}.results.json", status=made.status,
+                       exit_code=made.exit_code, checks_total=made.checks_total,
+                       checks_failed=made.checks_failed, review_state=made.review_state,
+                       title=made.title, calc_number=made.calc_number,
+                       revision=made.revision, html=html, extra={"date": made.date})
+
+
+def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
+    """Build one job and commit its files (the command's process does both)."""
+    claim = Claim.open(opts.out_dir)
+    try:
+        made = make_package(path, plugins, opts, before=lambda: claim_package(path, opts, claim))
+        return commit_package(made, opts, claim)
+    finally:
+        claim.release()
 
 
 def verification_cache(opts: BuildOptions):
@@ -278,123 +369,3 @@ def check_out_dir(out_dir: Path, job_path: Path) -> None:
                                        f" created: {folder} is a file, not a folder",
                                        field="--out"))
             return
-
-
-#: temporary files older than this are left over from a killed build, not in progress
-STALE_PART_SECONDS = 60.0
-
-
-def sweep_stale_parts(out_dir: Path, targets: list[Path], *,
-                      now: float | None = None) -> list[Path]:
-    """Remove ``.NAME.*.part`` files a killed build left beside ``targets``; return them.
-
-    Only old ones go: a younger one may belong to a build running at the same time.
-    """
-    if not out_dir.is_dir():
-        return []
-    now = time.time() if now is None else now
-    removed = []
-    for target in targets:
-        for part in out_dir.glob(f".{glob.escape(target.name)}.*.part"):
-            try:
-                if part.is_file() and not part.is_symlink() and (
-                        now - part.stat().st_mtime > STALE_PART_SECONDS):
-                    part.unlink()
-                    removed.append(part)
-            except OSError:
-                pass  # another build swept it first
-    return removed
-
-
-def commit_outputs(outputs: list[tuple[Path, bytes]]) -> None:
-    """Write every output to a synced temporary file, then rename them all into place.
-
-    The renames run with SIGINT and SIGTERM held back, so an interrupt lands before the
-    first rename (old package untouched) or after the last (new package complete).
-    """
-    temps: list[tuple[str, Path]] = []
-    try:
-        for target, data in outputs:
-            temps.append((_write_temp(target, data), target))
-        with _interrupts_held():
-            for tmp, target in temps:
-                os.replace(tmp, target)
-            _fsync_dir(outputs[0][0].parent)
-    except BaseException:
-        for tmp, _ in temps:
-            _discard(tmp)  # already renamed ones are simply gone
-        raise
-
-
-@contextlib.contextmanager
-def _interrupts_held():
-    """Hold SIGINT and SIGTERM back for the block, then act on them as usual.
-
-    A Python-level handler, not a signal mask: the mask is per thread, and a signal sent
-    to the process may land on any thread (the renderer's, the pool's).
-    """
-    if threading.current_thread() is not threading.main_thread():
-        yield  # only the main thread may set handlers; worker builds are not signalled
-        return
-    caught: list[int] = []
-    held = (signal.SIGINT, signal.SIGTERM)
-    previous = {s: signal.signal(s, lambda signum, frame: caught.append(signum)) for s in held}
-    try:
-        yield
-    finally:
-        for s, handler in previous.items():
-            signal.signal(s, handler)
-        if caught:
-            handler = previous[caught[0]]
-            if callable(handler):
-                handler(caught[0], None)
-            elif handler == signal.SIG_DFL:
-                signal.raise_signal(caught[0])
-
-
-def _write_temp(target: Path, data: bytes) -> str:
-    target.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
-    try:
-        umask = os.umask(0)
-        os.umask(umask)
-        os.fchmod(fd, 0o666 & ~umask)
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-    except BaseException:
-        _discard(tmp)
-        raise
-    return tmp
-
-
-def _discard(tmp: str) -> None:
-    try:
-        os.unlink(tmp)
-    except OSError:
-        pass
-
-
-def _fsync_dir(folder: Path) -> None:
-    # the renames themselves reach the disk only once the folder is synced
-    try:
-        fd = os.open(folder, os.O_RDONLY)
-    except OSError:
-        return
-    try:
-        os.fsync(fd)
-    except OSError:
-        pass
-    finally:
-        os.close(fd)
-
-
-def atomic_write(target: Path, data: bytes) -> None:
-    """Write ``data`` to a temporary file beside ``target``, fsync, then rename over it."""
-    tmp = _write_temp(target, data)
-    try:
-        os.replace(tmp, target)
-    except BaseException:
-        _discard(tmp)
-        raise

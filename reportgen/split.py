@@ -16,12 +16,14 @@ from __future__ import annotations
 import os
 import pickle
 import select
+import signal
 import sys
 import threading
 from collections.abc import Callable, Iterable, Iterator
 from typing import Any
 
 from .errors import ReportgenError
+from .lifeline import bind_to_parent
 
 
 def can_split() -> bool:
@@ -52,6 +54,10 @@ class Later:
 
     def close(self) -> None:
         pass
+
+    def kill(self) -> None:
+        """Stop producing items at once (an interrupt or an error in the caller)."""
+        self.close()
 
 
 class _LocalLater(Later):
@@ -155,6 +161,14 @@ class _PipeLater(Later):
                 self._cond.wait()
             return self._items.get(key)
 
+    def kill(self) -> None:
+        """Stop the child now (it ignores Ctrl-C; its own workers die with it)."""
+        try:
+            os.kill(self._pid, signal.SIGKILL)
+        except ProcessLookupError:
+            pass
+        self.close()
+
     def close(self) -> None:
         self._thread.join()
         try:
@@ -183,13 +197,15 @@ def run_split_stream(work: Callable[[], tuple[Any, Iterable[tuple[Any, Any]]]],
     Returns the result as soon as the child has it, and a :class:`Later` through which
     the items arrive while the child goes on producing them. Call its ``close()``.
     """
+    parent = os.getpid()
     read_fd, write_fd = os.pipe()
     pid = os.fork()
     if pid == 0:  # the child: compute, send, leave without running the parent's cleanups
-        os.close(read_fd)
         code = 0
         items: Iterable[tuple[Any, Any]] | None = None
         try:
+            bind_to_parent(parent)  # dies with the command; Ctrl-C is the command's
+            os.close(read_fd)
             with os.fdopen(write_fd, "wb") as fh:
                 try:
                     first, items = work()
@@ -223,7 +239,7 @@ def run_split_stream(work: Callable[[], tuple[Any, Iterable[tuple[Any, Any]]]],
         meanwhile()
         reply = later.first()
     except BaseException:
-        later.close()
+        later.kill()
         raise
     if reply[0] == "ok":
         return reply[1], later

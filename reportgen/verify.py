@@ -244,6 +244,11 @@ def verify_command(args: Any) -> int:
     if not (rtol >= 0 and math.isfinite(rtol)):
         raise JobError(f"--rtol must be a finite number ≥ 0, found {args.rtol}")
     targets = list(args.packages)
+    from .outputs import recover
+
+    for folder in dict.fromkeys(t if t.is_dir() else t.parent for t in targets):
+        for note in recover(folder):  # a commit a killed build left half done
+            print(f"note: {note}", file=sys.stderr)
     files = package_files(targets)
     folder_mode = any(t.is_dir() for t in targets)
     if not files:

@@ -87,6 +87,12 @@ def _env() -> dict[str, str]:
     return {**os.environ, "PYTHONDONTWRITEBYTECODE": "1"}
 
 
+def _sigint_default() -> None:
+    # A suite run in a background shell hands its children SIGINT ignored (and Python
+    # keeps an inherited SIG_IGN); the command under test gets Ctrl-C as a terminal would.
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 def _assert_package_whole(out: Path) -> None:
     """Under the final names: nothing, or a PDF that opens and ends, and valid JSON."""
     import pikepdf
@@ -150,7 +156,7 @@ def test_existing_package_needs_force(calc_set, capsys):
 def _child(mode: str, tmp: Path, job: Path, out: Path) -> subprocess.Popen:
     return subprocess.Popen([sys.executable, "-c", CHILD, mode, str(tmp / "marker"), str(job),
                              str(out)], env=_env(), stdout=subprocess.PIPE,
-                            stderr=subprocess.PIPE, text=True)
+                            stderr=subprocess.PIPE, text=True, preexec_fn=_sigint_default)
 
 
 def _wait_for(path: Path, proc: subprocess.Popen, seconds: float = 120) -> None:
@@ -221,7 +227,7 @@ def test_signal_at_a_random_moment_never_tears_the_package(sig, after, calc_set)
     proc = subprocess.Popen([sys.executable, "-m", "reportgen.cli", "build",
                              str(jobs / "a-good.toml"), "--out", str(out), "--force"],
                             env=_env(), stdout=subprocess.PIPE, stderr=subprocess.PIPE,
-                            text=True)
+                            text=True, preexec_fn=_sigint_default)
     time.sleep(after)
     proc.send_signal(sig)
     _, err = proc.communicate(timeout=240)

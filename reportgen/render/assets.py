@@ -107,8 +107,10 @@ def warm_pool(workers: int) -> ProcessPoolExecutor | None:
         return None
     import multiprocessing
 
+    from ..lifeline import pool_initializer
+
     pool = ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context(
-        "fork"), initializer=_warm_up)
+        "fork"), initializer=pool_initializer, initargs=(os.getpid(), _warm_up))
     for _ in range(workers):
         pool.submit(_noop)  # workers start on the first submissions
     return pool
@@ -258,7 +260,12 @@ class PendingAssets:
         # Fork: workers inherit the loaded modules.
         ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
         n = workers if pool is not None else min(workers, len(jobs))
-        self._pool = pool or ProcessPoolExecutor(max_workers=n, mp_context=ctx)
+        if pool is None:
+            from ..lifeline import pool_initializer
+
+            pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx,
+                                       initializer=pool_initializer, initargs=(os.getpid(),))
+        self._pool = pool
         chunks: list[list[tuple[str, Any]]] = []
         figs = [j for j in jobs if j[1][0] == "figure"]
         eqs = [j for j in jobs if j[1][0] != "figure"]
