@@ -14,7 +14,6 @@ import os
 import platform
 import re
 import sys
-import tomllib
 import zlib
 from importlib import metadata
 from pathlib import Path
@@ -426,10 +425,12 @@ def open_package(path: Path | str) -> Package:
     if not isinstance(results, dict) or not str(results.get("format", "")).startswith(
             "reportgen.results/"):
         raise NotAPackage(Problem(where, f"{RESULTS_NAME} is not a reportgen results file"))
+    from .jobfile import parse_job_toml
+
     try:
-        job_raw = tomllib.loads(files[JOB_NAME].decode("utf-8"))
-    except (UnicodeDecodeError, tomllib.TOMLDecodeError):
-        job_raw = {}
+        job_raw = parse_job_toml(where, files[JOB_NAME])
+    except JobError:
+        job_raw = {}  # the rebuild reports what is wrong with it
     return Package(path=path, files=files, manifest=manifest, results=results,
                    job_source=files[JOB_NAME], job_raw=job_raw)
 

@@ -188,16 +188,11 @@ def read_job_bytes(path: Path) -> bytes:
     return data
 
 
-def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = None,
-             archived: bool = False) -> Job:
-    """Read, parse and validate a job file. Raises JobError with every problem.
 
-    ``archived``: the job came out of a package to be recomputed; the previous package
-    and the template folder it names need not exist (neither changes a result).
-    """
-    path = Path(path)
-    fname = str(path)
-    data_bytes = read_job_bytes(path) if source is None else source
+def parse_job_toml(fname: str, data_bytes: bytes) -> dict[str, Any]:
+    """The job file's TOML as a dict, or JobError naming what is wrong with the text
+    (not UTF-8, empty, a syntax error, nesting too deep). Every reader of a job file
+    goes through here, so none can fail on text the validator refuses."""
     try:
         text = data_bytes.decode("utf-8")
     except UnicodeDecodeError as exc:
@@ -219,6 +214,20 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     if too_deep is not None:
         calc, fld = too_deep
         raise JobError(Problem(fname, _TOO_DEEP, calc, fld))
+    return raw
+
+
+def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = None,
+             archived: bool = False) -> Job:
+    """Read, parse and validate a job file. Raises JobError with every problem.
+
+    ``archived``: the job came out of a package to be recomputed; the previous package
+    and the template folder it names need not exist (neither changes a result).
+    """
+    path = Path(path)
+    fname = str(path)
+    data_bytes = read_job_bytes(path) if source is None else source
+    raw = parse_job_toml(fname, data_bytes)
     problems: list[Problem] = []
     v = _Validator(fname, problems, archived=archived)
     for key in raw:

@@ -21,7 +21,6 @@ import stat
 import tempfile
 import threading
 import time
-import tomllib
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -47,11 +46,11 @@ def package_names(path: Path) -> tuple[str, str, str] | None:
     """(calc number, revision, file stem) read from a job file without validating the
     rest of it, or None if they cannot be read; :func:`reportgen.jobfile.load_job` then
     reports why. Cheap (no units, no plugins): the command reads it before the build."""
-    from .jobfile import file_stem, read_job_bytes
+    from .jobfile import file_stem, parse_job_toml, read_job_bytes
 
     try:
-        raw = tomllib.loads(read_job_bytes(path).decode("utf-8"))
-    except (JobError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        raw = parse_job_toml(str(path), read_job_bytes(path))
+    except JobError:
         return None
     pkg = raw.get("package")
     if not isinstance(pkg, dict):
