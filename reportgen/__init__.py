@@ -6,10 +6,17 @@ The public API for calc-plugin authors is importable from here: :data:`hookimpl`
 
 from importlib import metadata as _metadata
 
-from .calc import CalcContext, CalcOutput, CalcType, InputSpec, Sheet, VerificationCase
-from .errors import JobError, PluginError, RenderError, ReportgenError, VerificationError
-from .hookspecs import API_VERSION, hookimpl
-from .model import (
+from reportgen.calc.hookspecs import API_VERSION, hookimpl
+from reportgen.calc.sheet import (
+    CalcContext,
+    CalcOutput,
+    CalcType,
+    InputSpec,
+    Sheet,
+    VerificationCase,
+)
+from reportgen.errors import JobError, PluginError, RenderError, ReportgenError, VerificationError
+from reportgen.model import (
     Assumptions,
     Band,
     Caution,

@@ -13,7 +13,7 @@ import math
 from collections.abc import Callable, Mapping
 from functools import lru_cache
 
-from .units import format_number
+from reportgen.units import format_number
 
 __all__ = ["FormulaError", "evaluate", "is_scientific", "names_in", "number_latex",
            "symbol_latex", "to_latex"]

@@ -21,13 +21,13 @@ from typing import Any
 
 import pytest
 
-from .build import compute_document
-from .calc import CalcOutput, CalcType
-from .formula import evaluate, names_in
-from .jobfile import Job, load_job
-from .model import Document, Equation, Section
-from .plugins import PluginSet, get_plugin_manager
-from .units import DIMENSIONS, format_number
+from reportgen.calc.plugin_set import PluginSet, get_plugin_manager
+from reportgen.calc.sheet import CalcOutput, CalcType
+from reportgen.document.compute import compute_document
+from reportgen.formula import evaluate, names_in
+from reportgen.job.load import Job, load_job
+from reportgen.model import Document, Equation, Section
+from reportgen.units import DIMENSIONS, format_number
 
 __all__ = [
     "Built", "assert_calc_contract", "assert_equations_reproduce", "build_package",
@@ -163,7 +163,7 @@ class Built:
         return {k: v["value"] for k, v in c["results"].items()}
 
     def text(self) -> str:
-        from .selfcheck import extract_text
+        from reportgen.render.selfcheck import extract_text
 
         return extract_text(self.pdf.read_bytes())[1]
 
@@ -171,7 +171,7 @@ class Built:
 def build_package(job: Mapping[str, Any], folder: Path, *, plugins: PluginSet | None = None,
                   html: bool = True, **options: Any) -> Built:
     """Build a job dict into ``folder`` (job.toml, out/...) through the real pipeline."""
-    from .pipeline import BuildOptions, build_job
+    from reportgen.pipeline.plan import BuildOptions, build_job
 
     plugins = plugins or get_plugin_manager()
     folder.mkdir(parents=True, exist_ok=True)
@@ -244,8 +244,8 @@ def assert_calc_contract(calc_type: CalcType, job_calc: Mapping[str, Any], folde
     assert assert_equations_reproduce(doc) > 0, "no equations"
     assert section.verification is not None, f"{calc_type.name} provides no verification"
     assert all(v.agrees for v in section.verification)
-    from .render.assets import render_assets
-    from .render.html import render_html
+    from reportgen.render.assets import render_assets
+    from reportgen.render.html import render_html
 
     html = render_html(doc, render_assets(doc, use_cache=False))
     assert section.title in html

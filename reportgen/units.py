@@ -86,7 +86,7 @@ def _registry():  # pint is imported lazily: start-up stays fast
     # pint's own parse of its definitions file (~0.2 s) is cached beside reportgen's
     # caches; flexcache keys it by the file's content. Any problem: parse afresh.
     try:
-        from .cache import default_cache_dir
+        from reportgen.store import default_cache_dir
 
         folder = default_cache_dir() / "pint"
         folder.mkdir(parents=True, exist_ok=True)

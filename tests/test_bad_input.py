@@ -16,7 +16,7 @@ from pathlib import Path
 import pytest
 
 from reportgen.cli import main
-from reportgen.jobfile import MAX_CALCS, MAX_JOB_BYTES
+from reportgen.job.load import MAX_CALCS, MAX_JOB_BYTES
 
 REPO = Path(__file__).resolve().parent.parent
 
@@ -315,7 +315,7 @@ def test_problems_in_two_calcs_are_all_reported(tmp_path, capsys):
 
 
 def _forced_response_inputs() -> set[str]:
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import get_plugin_manager
 
     reg = get_plugin_manager().get("forced_response")
     return set() if reg is None else {s.name for s in reg.calc_type.inputs}
@@ -420,7 +420,7 @@ def test_schema_is_valid_json_schema_and_accepts_the_sample_jobs(capsys):
     validator = jsonschema.Draft202012Validator(schema)
     samples = sorted((REPO / "sample_jobs").glob("*.toml"))
     assert samples
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import get_plugin_manager
 
     known = set(get_plugin_manager().names())
     for sample in samples:
@@ -443,7 +443,7 @@ def test_schema_rejects_what_check_rejects(capsys):
 
 
 def test_schema_lists_every_installed_calc_type_and_its_inputs(capsys):
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import get_plugin_manager
 
     schema = _schema(capsys)
     plugins = get_plugin_manager()

@@ -12,10 +12,10 @@ from pathlib import Path
 import pytest
 
 from reportgen import CalcType, InputSpec, Sheet, VerificationRow, hookimpl
+from reportgen.calc.plugin_set import get_plugin_manager
 from reportgen.cli import main
 from reportgen.errors import RenderError
-from reportgen.plugins import get_plugin_manager
-from reportgen.selfcheck import self_check
+from reportgen.render.selfcheck import self_check
 from reportgen.testing import build_package, compute, job_toml, make_job
 
 TESTS = Path(__file__).resolve().parent
@@ -205,7 +205,7 @@ def test_folder_build_writes_register(tmp_path, capsys):
         assert row["checks_failed"] == data["package"]["checks_failed"]
         assert row["review_state"] == "preliminary"
     assert rows["T-1-002"]["status"] == "fail" and rows["T-1-001"]["status"] == "pass"
-    from reportgen.selfcheck import extract_text
+    from reportgen.render.selfcheck import extract_text
 
     text = extract_text((out / "register.pdf").read_bytes())[1]
     assert "T-1-001" in text and "T-1-002" in text and "FAIL" in text

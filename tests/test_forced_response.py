@@ -18,10 +18,10 @@ from scipy.integrate import solve_ivp
 from scipy.optimize import minimize_scalar
 
 from reportgen import Caution, Equation, Figure, InputsTable, JobError, Note, Paragraph
-from reportgen.build import compute_document
+from reportgen.calc.plugin_set import get_plugin_manager
 from reportgen.cli import main
-from reportgen.jobfile import load_job
-from reportgen.plugins import get_plugin_manager
+from reportgen.document.compute import compute_document
+from reportgen.job.load import load_job
 from reportgen.testing import (
     assert_calc_contract,
     compute,
@@ -274,7 +274,7 @@ def test_verification_catches_a_wrong_closed_form(check_cases, tmp_path):
     # A verifier that cannot fail proves nothing: a 0.1 % error in X must be caught.
     case = check_cases["B1_forced_applied_force"]
     plugins = get_plugin_manager()
-    from reportgen.build import calc_context
+    from reportgen.document.compute import calc_context
     from reportgen.testing import load_job_dict
 
     job = load_job_dict(make_job([_calc(_b1_inputs(case))]), plugins, tmp_path)

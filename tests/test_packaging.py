@@ -20,9 +20,9 @@ from pathlib import Path
 
 import pytest
 
-from reportgen import cache as rg_cache
+from reportgen import store as rg_cache
+from reportgen.calc.plugin_set import get_plugin_manager
 from reportgen.cli import main
-from reportgen.plugins import get_plugin_manager
 
 REPO = Path(__file__).resolve().parent.parent
 FIXTURES = Path(__file__).resolve().parent / "plugins"
@@ -60,7 +60,7 @@ def wheel(tmp_path_factory) -> tuple[Path, str]:
 def test_stale_build_folder_files_do_not_ship(wheel):
     path, _ = wheel
     names = zipfile.ZipFile(path).namelist()
-    assert "reportgen/cli.py" in names
+    assert "reportgen/cli/__init__.py" in names
     assert not [n for n in names if "stale_leftover" in n]
 
 

@@ -16,10 +16,11 @@ from pathlib import Path
 
 import pytest
 
-from reportgen import cli, hookspecs
-from reportgen.calc import CalcContext
+from reportgen import cli
+from reportgen.calc import hookspecs
+from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.calc.sheet import CalcContext
 from reportgen.errors import ExitCode, JobError, PluginError, VerificationError
-from reportgen.plugins import get_plugin_manager
 from reportgen.testing import (
     assert_calc_contract,
     assert_equations_reproduce,
@@ -246,7 +247,7 @@ def test_import_error_is_listed_as_broken(installed):
 def test_prepare_jinja_env_reaches_a_firm_template(tmp_path):
     from reportgen.render.assets import render_assets
     from reportgen.render.html import render_html
-    from reportgen.templates import jinja_hook
+    from reportgen.render.logo import jinja_hook
 
     plugins = plugins_with("jinja_filter")
     doc = compute(make_job({"plugin": "free_vibration",

@@ -17,9 +17,10 @@ from pathlib import Path
 import pytest
 from conftest import assert_case
 
-from reportgen import cli, scaffold
-from reportgen.jobfile import load_job
-from reportgen.plugins import get_plugin_manager
+from reportgen import cli
+from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.cli import scaffold
+from reportgen.job.load import load_job
 from reportgen.testing import assert_calc_contract, compute, make_job, result
 
 

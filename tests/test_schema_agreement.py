@@ -21,10 +21,10 @@ from typing import Any
 
 import pytest
 
-from reportgen.commands import load_plugins
+from reportgen.cli.commands import load_plugins
 from reportgen.errors import JobError
-from reportgen.jobfile import load_job
-from reportgen.schema import KNOWN_DIFFERENCES, job_schema, unit_pattern
+from reportgen.job.load import load_job
+from reportgen.job.schema import KNOWN_DIFFERENCES, job_schema, unit_pattern
 from reportgen.units import DIMENSIONS
 
 jsonschema = pytest.importorskip("jsonschema")

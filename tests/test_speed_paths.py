@@ -12,12 +12,12 @@ from pathlib import Path
 import pytest
 from conftest import REPO
 
-from reportgen.build import compute_document
-from reportgen.cache import VerificationCache
-from reportgen.commands import load_plugins
-from reportgen.jobfile import load_job
+from reportgen.cli.commands import load_plugins
+from reportgen.document.compute import compute_document
+from reportgen.job.load import load_job
 from reportgen.render.assets import iter_asset_blocks
 from reportgen.render.math import equation_latex
+from reportgen.store import VerificationCache
 
 SAMPLES = sorted((REPO / "sample_jobs").glob("qep-10[1-5]*.toml"))
 # Hand-made cases with nesting, fences and radicals (no source needed: the check is that
@@ -138,8 +138,8 @@ def test_verification_cache_reuses_rows_and_ignores_corrupt_entries(plugins, tmp
 
 
 def test_verification_key_follows_inputs_and_plugin_version(plugins, tmp_path, monkeypatch):
-    from reportgen.build import calc_context
-    from reportgen.cache import verification_key
+    from reportgen.document.compute import calc_context
+    from reportgen.store import verification_key
 
     job = _free_job(plugins, tmp_path)
     reg = plugins.calcs["free_vibration"]
@@ -153,7 +153,7 @@ def test_verification_key_follows_inputs_and_plugin_version(plugins, tmp_path, m
 
 
 def test_self_check_text_matches_pypdf(tmp_path):
-    from reportgen.selfcheck import extract_text, fast_text
+    from reportgen.render.selfcheck import extract_text, fast_text
 
     assert main_build(tmp_path) in (0, 1)
     pdf = next(tmp_path.glob("*.pdf")).read_bytes()
@@ -188,7 +188,7 @@ def test_self_check_pattern_reader_matches_the_content_parser(tmp_path):
 
     import pikepdf
 
-    from reportgen import selfcheck
+    from reportgen.render import selfcheck
 
     assert main_build(tmp_path) in (0, 1)
     pdf = next(tmp_path.glob("*.pdf")).read_bytes()
@@ -230,9 +230,9 @@ def test_images_drawn_during_the_layout_give_the_same_pdf():
     """Figures and equations handed over while WeasyPrint lays out (and a figure whose
     announced size is wrong, which makes the layout start again) give the bytes of a
     layout with every image present from the start."""
-    from reportgen.pipeline import BuildOptions, Prepared, package_html, package_pdf
-    from reportgen.results import results_bytes
-    from reportgen.split import local_later
+    from reportgen.document.results import results_bytes
+    from reportgen.pipeline.fork import local_later
+    from reportgen.pipeline.plan import BuildOptions, Prepared, package_html, package_pdf
 
     plugins = load_plugins()
     job = load_job(REPO / "sample_jobs" / "qep-104-chiller-ch1.toml", plugins)
@@ -276,7 +276,7 @@ def test_html_written_beside_the_pdf_is_self_contained_and_lays_out_the_same(tmp
     import weasyprint
 
     from reportgen.cli import main
-    from reportgen.selfcheck import fast_text
+    from reportgen.render.selfcheck import fast_text
 
     job = REPO / "sample_jobs" / "qep-104-chiller-ch1.toml"
     assert main(["build", str(job), "--out", str(tmp_path), "--force", "--html",

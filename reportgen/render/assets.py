@@ -18,11 +18,11 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from ..cache import default_cache_dir, touch
-from ..model import Document, Equation, Figure, to_json
-from .figures import figure_points
-from .html import data_uri
-from .pdf import ASSET_SCHEME, asset_mime
+from reportgen.model import Document, Equation, Figure, to_json
+from reportgen.render.figures import figure_points
+from reportgen.render.html import data_uri
+from reportgen.render.pdf import ASSET_SCHEME, asset_mime
+from reportgen.store import default_cache_dir, touch
 
 #: Bump when the drawing code changes, so cached assets of the old look are not reused.
 RENDERER_TAG = "assets/5"  # 5: superscripts and subscripts as text
@@ -53,11 +53,11 @@ def asset_key(block: Equation | Figure, units: str) -> str:
 def _render_one(job: tuple[str, Any, str]) -> bytes:
     kind, block, units = job
     if kind == "figure":
-        from .figures import figure_svg
+        from reportgen.render.figures import figure_svg
 
         return figure_svg(block, units)
-    from .math import equation_latex
-    from .mathsvg import latex_svg
+    from reportgen.render.math import equation_latex
+    from reportgen.render.mathsvg import latex_svg
 
     return latex_svg(equation_latex(block, units))
 
@@ -67,7 +67,7 @@ FONT_JOB = "math-font"
 
 
 def _make_font() -> bytes:
-    from .mathsvg import math_font
+    from reportgen.render.mathsvg import math_font
 
     return math_font()
 
@@ -80,7 +80,7 @@ def _warm_up() -> None:
     # Runs as each worker starts: the math typesetter and its font load (~0.15 s) while
     # the parent is still computing, so the first equation is set as soon as it is asked
     # for. matplotlib (~0.5 s) loads with the first figure: a warm rebuild seldom needs it.
-    from .mathsvg import _math_font, install_speedups
+    from reportgen.render.mathsvg import _math_font, install_speedups
 
     install_speedups()
     _math_font()
@@ -107,7 +107,7 @@ def warm_pool(workers: int) -> ProcessPoolExecutor | None:
         return None
     import multiprocessing
 
-    from ..lifeline import pool_initializer
+    from reportgen.pipeline.lifeline import pool_initializer
 
     pool = ProcessPoolExecutor(max_workers=workers, mp_context=multiprocessing.get_context(
         "fork"), initializer=pool_initializer, initargs=(os.getpid(), _warm_up))
@@ -261,7 +261,7 @@ class PendingAssets:
         ctx = multiprocessing.get_context("fork") if hasattr(os, "fork") else None
         n = workers if pool is not None else min(workers, len(jobs))
         if pool is None:
-            from ..lifeline import pool_initializer
+            from reportgen.pipeline.lifeline import pool_initializer
 
             pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx,
                                        initializer=pool_initializer, initargs=(os.getpid(),))
@@ -309,7 +309,7 @@ class PendingAssets:
         staged = StagedAssets(assets=assets, ready={asset_url(k): v for k, v in
                                                     self.payloads.items()})
         if any(kind == "equation" for kind, _key in self.keys.values()):
-            from .mathsvg import font_face_css
+            from reportgen.render.mathsvg import font_face_css
 
             font = self.font()
             url = asset_url(hashlib.sha256(font).hexdigest())
@@ -326,7 +326,7 @@ class PendingAssets:
 
     def font(self) -> bytes:
         """The math font: from the cache, from a worker that made it, or made here."""
-        from .mathsvg import math_font, math_font_key
+        from reportgen.render.mathsvg import math_font, math_font_key
 
         key = math_font_key()
         font = self.cache.get(key)
@@ -350,7 +350,7 @@ class PendingAssets:
         for block, url in staged.assets.items():
             out[block] = data_uri(staged.ready[url])
         if staged.assets.css:
-            from .mathsvg import font_face_css
+            from reportgen.render.mathsvg import font_face_css
 
             out.css = font_face_css(data_uri(self.font(), "font/ttf"))
         return out
@@ -425,7 +425,7 @@ def prefetch(blocks: Iterable[Any], units: str, *, cache_dir: Path | None, use_c
         (figs if kind == "figure" else eqs)[key] = (kind, block, units)
     out: dict[str, Future] = {}
     if eqs:
-        from .mathsvg import math_font_key
+        from reportgen.render.mathsvg import math_font_key
 
         if cache.get(math_font_key()) is None:  # the layout's first need, cheap to make
             out[FONT_JOB] = pool.submit(_make_font)

@@ -15,9 +15,9 @@ from typing import Any
 
 from markupsafe import Markup, escape
 
-from ..formula import _GREEK
-from ..model import BLOCK_TYPES, Check, Document, Quantity, VerificationRow
-from ..units import DIMENSIONS, format_number, table_display
+from reportgen.formula import _GREEK
+from reportgen.model import BLOCK_TYPES, Check, Document, Quantity, VerificationRow
+from reportgen.units import DIMENSIONS, format_number, table_display
 
 _GREEK_CHARS = {
     "alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
@@ -71,7 +71,7 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
     import jinja2
     from jinja2.sandbox import ImmutableSandboxedEnvironment
 
-    from .theme import ThemeLoader
+    from reportgen.render.theme import ThemeLoader
 
     loaders: list[jinja2.BaseLoader] = []
     if template_dir is not None:
@@ -129,8 +129,8 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
                 logo: str | None = None, extra_hook: Any = None) -> str:
     import jinja2
 
-    from ..errors import ThemeError
-    from .theme import template_failure
+    from reportgen.errors import ThemeError
+    from reportgen.render.theme import template_failure
 
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
     try:

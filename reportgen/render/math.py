@@ -9,9 +9,9 @@ from __future__ import annotations
 import math
 import re
 
-from ..formula import is_scientific, number_latex, symbol_latex, to_latex
-from ..model import Equation
-from ..units import DIMENSIONS, display
+from reportgen.formula import is_scientific, number_latex, symbol_latex, to_latex
+from reportgen.model import Equation
+from reportgen.units import DIMENSIONS, display
 
 
 def unit_latex(label: str) -> str:

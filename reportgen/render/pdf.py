@@ -24,7 +24,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from urllib.parse import unquote, urlparse
 
-from ..errors import RenderError
+from reportgen.errors import RenderError
 
 PDF_VARIANT = "pdf/a-3b"
 #: the most the renderer reads of one file from the job's or the theme's folder
@@ -54,7 +54,7 @@ class EmbeddedFile:
 def _fetcher_class():
     from weasyprint.urls import FatalURLFetchingError, URLFetcher, URLFetcherResponse
 
-    from ..safepath import TooLarge, UnsafePath, open_inside, read_fd
+    from reportgen.job.paths import TooLarge, UnsafePath, open_inside, read_fd
 
     class JobFolderFetcher(URLFetcher):
         """Serve data: URIs and regular files under the job folder; refuse the rest."""

@@ -11,8 +11,8 @@ from typing import Any
 
 import jinja2
 
-from ..errors import Problem, RenderError, ThemeError
-from ..safepath import TooLarge, UnsafePath, open_inside, path_parts, read_fd
+from reportgen.errors import Problem, RenderError, ThemeError
+from reportgen.job.paths import TooLarge, UnsafePath, open_inside, path_parts, read_fd
 
 #: templates, stylesheets and logos of a theme: text and small pictures
 THEME_FILE_LIMIT = 2_000_000

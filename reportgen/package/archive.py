@@ -19,12 +19,12 @@ from importlib import metadata
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from .errors import JobError, Problem
-from .model import Document
+from reportgen.errors import JobError, Problem
+from reportgen.model import Document
 
 if TYPE_CHECKING:
-    from .jobfile import Job
-    from .render.pdf import EmbeddedFile
+    from reportgen.job.load import Job
+    from reportgen.render.pdf import EmbeddedFile
 
 MANIFEST_FORMAT = "reportgen.manifest/1"
 JOB_NAME = "job.toml"
@@ -79,7 +79,7 @@ def environment_lock() -> bytes:
     anything installed from a local folder are comment lines: pip must not ask a package
     index for an in-house name; they are installed from their own source or wheel.
     """
-    from . import __version__
+    from reportgen import __version__
 
     cwd = os.getcwd()
     path = [p for p in sys.path if p and os.path.abspath(p) != cwd]
@@ -111,7 +111,7 @@ def environment_lock() -> bytes:
 
 
 def manifest_data(doc: Document, job: Job, results: bytes) -> dict[str, Any]:
-    from . import __version__
+    from reportgen import __version__
 
     plugins = {}
     for s in doc.sections:
@@ -140,7 +140,7 @@ def manifest_bytes(doc: Document, job: Job, results: bytes) -> bytes:
 
 
 def embedded_files(job: Job, results: bytes, manifest: bytes) -> list[EmbeddedFile]:
-    from .render.pdf import EmbeddedFile
+    from reportgen.render.pdf import EmbeddedFile
 
     # sorted by name: PDF name trees must be sorted, and WeasyPrint keeps the given order
     files = [
@@ -170,9 +170,9 @@ def changes_since(doc: Document, job: Job) -> Document:
     The previous revision's name goes into ``doc.extra`` as ``previous_revision`` for the
     section title; the lines compare its embedded job and results with this build.
     """
-    from .build import with_changes
-    from .diff import describe_changes, read_package_files
-    from .results import results_data
+    from reportgen.document.compute import with_changes
+    from reportgen.document.results import results_data
+    from reportgen.package.compare import describe_changes, read_package_files
 
     assert job.previous_package is not None
     try:
@@ -425,7 +425,7 @@ def open_package(path: Path | str) -> Package:
     if not isinstance(results, dict) or not str(results.get("format", "")).startswith(
             "reportgen.results/"):
         raise NotAPackage(Problem(where, f"{RESULTS_NAME} is not a reportgen results file"))
-    from .jobfile import parse_job_toml
+    from reportgen.job.load import parse_job_toml
 
     try:
         job_raw = parse_job_toml(where, files[JOB_NAME])
@@ -441,7 +441,7 @@ def load_embedded_job(pkg: Package, plugins: Any, folder: Path) -> Job:
     Loaded as an archived job: a previous package or template folder it names need not
     exist. Raises JobError when the job no longer loads with the installed plugins.
     """
-    from .jobfile import load_job
+    from reportgen.job.load import load_job
 
     folder = folder.resolve()
     for name, rel in pkg.attachment_paths():

@@ -11,9 +11,9 @@ import sys
 from importlib import resources
 from pathlib import Path
 
-from .errors import ExitCode, JobError, PluginError, Problem, ReportgenError
-from .plugins import PluginSet, get_plugin_manager
-from .units import DIMENSIONS
+from reportgen.calc.plugin_set import PluginSet, get_plugin_manager
+from reportgen.errors import ExitCode, JobError, PluginError, Problem, ReportgenError
+from reportgen.units import DIMENSIONS
 
 
 def load_plugins() -> PluginSet:
@@ -65,7 +65,7 @@ def job_files(targets: list[Path]) -> list[Path]:
 
 
 def check_jobs(targets: list[Path]) -> int:
-    from .jobfile import load_job
+    from reportgen.job.load import load_job
 
     plugins = load_plugins()
     problems: list[Problem] = []
@@ -82,7 +82,7 @@ def check_jobs(targets: list[Path]) -> int:
 
 
 def print_schema() -> int:
-    from .schema import job_schema
+    from reportgen.job.schema import job_schema
 
     json.dump(job_schema(load_plugins()), sys.stdout, indent=2)
     print()
@@ -94,8 +94,8 @@ def sample_jobs_dir() -> Path:
 
 
 def build_command(args) -> int:
-    from .cli import default_workers
-    from .pipeline import BuildOptions
+    from reportgen.cli import default_workers
+    from reportgen.pipeline.plan import BuildOptions
 
     if args.command == "demo":
         target = sample_jobs_dir()
@@ -115,11 +115,11 @@ def build_command(args) -> int:
                         use_cache=use_cache, template_dir=tdir.resolve() if tdir else None,
                         workers=1)
     if executor == "dask":
-        from .distributed import require_dask
+        from reportgen.pipeline.dask import require_dask
 
         require_dask()  # the install hint now, before anything is built
     if target.is_dir():
-        from .calcset import build_folder
+        from reportgen.pipeline.sets import build_folder
 
         code = build_folder(target, opts, workers=jobs, executor=executor,
                             scheduler=scheduler, demo=args.command == "demo")
@@ -129,7 +129,7 @@ def build_command(args) -> int:
         raise JobError(Problem(str(target), "no such job file"))
     if executor != "local":
         raise JobError("--executor dask applies to folder builds")
-    from .pipeline import build_job
+    from reportgen.pipeline.plan import build_job
 
     plugins = load_plugins()
     opts = BuildOptions(**{**opts.__dict__, "workers": jobs, "split": True})
@@ -142,7 +142,7 @@ def build_command(args) -> int:
 def _prune_cache(opts) -> None:
     """Keep the cache under its cap (REPORTGEN_CACHE_MAX_MB) once the outputs are written."""
     if opts.use_cache:
-        from .cache import default_cache_dir, prune_cache
+        from reportgen.store import default_cache_dir, prune_cache
 
         prune_cache(opts.cache_dir or default_cache_dir())
 

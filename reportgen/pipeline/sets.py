@@ -14,9 +14,9 @@ from dataclasses import asdict
 from pathlib import Path
 from typing import Any
 
-from .errors import ExitCode, JobError, Problem, ReportgenError
-from .outputs import refuse_existing
-from .pipeline import BuildOptions
+from reportgen.errors import ExitCode, JobError, Problem, ReportgenError
+from reportgen.pipeline.commit import refuse_existing
+from reportgen.pipeline.plan import BuildOptions
 
 REGISTER_FORMAT = "reportgen.register/1"
 REGISTER_JSON, REGISTER_PDF = "register.json", "register.pdf"
@@ -25,8 +25,8 @@ REGISTER_JSON, REGISTER_PDF = "register.json", "register.pdf"
 def build_one(path: str, opts: dict[str, Any]) -> dict[str, Any]:
     """Make one job's package in this process and return its bytes in the outcome; never
     raises (the outcome is data) and writes nothing: the command commits."""
-    from .commands import error_text, load_plugins
-    from .pipeline import make_package
+    from reportgen.cli.commands import error_text, load_plugins
+    from reportgen.pipeline.plan import make_package
 
     values: dict[str, Any] = {k: (Path(v) if k in ("out_dir", "cache_dir", "template_dir")
                                   and v is not None else v) for k, v in opts.items()}
@@ -61,7 +61,7 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
     """
     outcomes: dict[int, dict[str, Any]] = {}
     if executor == "dask":
-        from .distributed import run_on_dask
+        from reportgen.pipeline.dask import run_on_dask
 
         return run_on_dask(func, items, scheduler=scheduler, on_done=on_done, workers=workers)
     if workers <= 1 or len(items) <= 1:
@@ -72,7 +72,7 @@ def run_tasks(func: Callable[..., dict[str, Any]], items: list[tuple], *, worker
     else:
         import multiprocessing
 
-        from .lifeline import children_start_deaf, pool_initializer
+        from reportgen.pipeline.lifeline import children_start_deaf, pool_initializer
 
         ctx = multiprocessing.get_context("spawn")
         order = list(range(len(items)))
@@ -111,7 +111,7 @@ def _leave_fast() -> None:
     (~0.6 s measured) while the set waits for its workers."""
     import atexit
 
-    from .cli import leave_now
+    from reportgen.cli import leave_now
 
     atexit.register(leave_now, 0)  # runs first: atexit handlers run last-registered first
 
@@ -162,7 +162,7 @@ def set_names(files: list[Path]) -> dict[Path, tuple[str, str, str]]:
     """Each job's (calc number, revision, stem); refuse (exit 2, before anything is built)
     jobs that would write the same file, or names that differ only in case (one file on a
     case-insensitive file system)."""
-    from .outputs import package_names
+    from reportgen.pipeline.commit import package_names
 
     names = {p: n for p in files if (n := package_names(p)) is not None}
     by_stem: dict[str, list[Path]] = {}
@@ -192,9 +192,15 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
     the one commit at the end renames every package and the register into place. An
     interrupt or failure before it leaves the output folder as it was.
     """
-    from .commands import job_files
-    from .outputs import Claim, package_files, preflight, recover, sweep_stale_parts
-    from .pipeline import check_out_dir
+    from reportgen.cli.commands import job_files
+    from reportgen.pipeline.commit import (
+        Claim,
+        package_files,
+        preflight,
+        recover,
+        sweep_stale_parts,
+    )
+    from reportgen.pipeline.plan import check_out_dir
 
     files = job_files([folder])
     names = set_names(files)
@@ -222,7 +228,7 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
                                            " another --out folder)"))
         return _build_set(files, opts, workers, executor, scheduler, claim, staged)
     finally:
-        from .outputs import discard
+        from reportgen.pipeline.commit import discard
 
         for items in staged.values():  # whatever was not committed
             for s in items:
@@ -232,7 +238,7 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
 
 def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: str,
                scheduler: str | None, claim, staged: dict[str, list]) -> int:
-    from .outputs import stage
+    from reportgen.pipeline.commit import stage
 
     out_dir = opts.out_dir
     opts_dict = worker_options(opts)
@@ -242,7 +248,7 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
         # instead of a second of waiting after the last package).
         import threading
 
-        from .render.pdf import preload_renderer
+        from reportgen.render.pdf import preload_renderer
 
         threading.Thread(target=preload_renderer, name="reportgen-preload",
                          daemon=True).start()
@@ -292,7 +298,7 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
 def worker_options(opts: BuildOptions) -> dict[str, Any]:
     """The build options as a worker gets them: every path absolute, the cache folder
     named, so a worker in another folder (a Dask worker) reads and writes the same."""
-    from .cache import default_cache_dir
+    from reportgen.store import default_cache_dir
 
     values = asdict(opts)
     if opts.use_cache and opts.cache_dir is None:
@@ -307,8 +313,14 @@ def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
     A package that cannot be committed (it appeared meanwhile without --force, or its job
     file changed its name) is reported as not built instead.
     """
-    from .errors import ExitCode
-    from .outputs import commit_staged, journal_path, recover, stage, sweep_stale_parts
+    from reportgen.errors import ExitCode
+    from reportgen.pipeline.commit import (
+        commit_staged,
+        journal_path,
+        recover,
+        stage,
+        sweep_stale_parts,
+    )
 
     out_dir = opts.out_dir
     for note in recover(out_dir):
@@ -325,7 +337,7 @@ def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
             if not opts.force:
                 refuse_existing(Path(o["job"]), [Path(o["pdf"]), Path(o["results"])])
         except JobError as exc:
-            from .commands import error_text
+            from reportgen.cli.commands import error_text
 
             o.update(ok=False, exit_code=int(ExitCode.INVALID_INPUT), error=error_text(exc))
             continue
@@ -367,7 +379,7 @@ def register_rows(built: Iterable[dict[str, Any]]) -> list[dict[str, Any]]:
 
 def register_files(out_dir: Path, rows: list[dict[str, Any]]) -> list[tuple[Path, bytes]]:
     """A register of ``rows`` (see register_rows): (path, bytes) of its JSON and its PDF."""
-    from .render.register import register_pdf
+    from reportgen.render.register import register_pdf
 
     data = {"format": REGISTER_FORMAT, "packages": rows}
     return [(out_dir / REGISTER_JSON,

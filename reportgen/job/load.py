@@ -17,12 +17,12 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .calc import InputSpec
-from .errors import JobError, Problem
-from .model import PackageInfo, RevisionEntry
-from .plugins import PluginSet
-from .safepath import Kind, job_relative_path, path_parts, read_job_file
-from .units import DIMENSIONS, UnitProblem, parse_quantity
+from reportgen.calc.plugin_set import PluginSet
+from reportgen.calc.sheet import InputSpec
+from reportgen.errors import JobError, Problem
+from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
+from reportgen.model import PackageInfo, RevisionEntry
+from reportgen.units import DIMENSIONS, UnitProblem, parse_quantity
 
 MAX_JOB_BYTES = 1_000_000
 MAX_CALCS = 200
@@ -626,7 +626,7 @@ class _Validator:
             try:
                 cross = list(ct.validate(inputs, given, criteria))
             except Exception as exc:
-                from .errors import PluginError
+                from reportgen.errors import PluginError
 
                 raise PluginError(f"validate raised {type(exc).__name__}: {exc}",
                                   plugin=reg.plugin, package=reg.package, calc=label,

@@ -12,7 +12,7 @@ import uuid
 from collections.abc import Callable
 from typing import Any
 
-from .errors import ExitCode, JobError
+from reportgen.errors import ExitCode, JobError
 
 
 def require_dask():
@@ -43,17 +43,18 @@ def _client(scheduler: str | None, workers: int):
     import dask
     from distributed.utils import get_mp_context
 
-    from .lifeline import PARENT_ENV
+    from reportgen.pipeline.lifeline import PARENT_ENV
 
     before = os.environ.get(PARENT_ENV)
     os.environ[PARENT_ENV] = str(os.getpid())  # for the forkserver started below
     try:
         with dask.config.set({"distributed.worker.multiprocessing-method": "forkserver"}):
             get_mp_context().set_forkserver_preload(
-                ["reportgen.lifeline", "distributed", "reportgen.calcset", "reportgen.verify"])
+                ["reportgen.pipeline.lifeline", "distributed", "reportgen.pipeline.sets",
+                 "reportgen.package.verify"])
             cluster = LocalCluster(n_workers=max(1, workers), threads_per_worker=1,
                                    processes=True, dashboard_address=None,
-                                   preload=["reportgen.lifeline"])
+                                   preload=["reportgen.pipeline.lifeline"])
     finally:
         if before is None:
             os.environ.pop(PARENT_ENV, None)

@@ -17,9 +17,9 @@ from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
-from .calc import CalcContext, CalcOutput
-from .model import VerificationRow, to_json
-from .plugins import RegisteredCalc
+from reportgen.calc.plugin_set import RegisteredCalc
+from reportgen.calc.sheet import CalcContext, CalcOutput
+from reportgen.model import VerificationRow, to_json
 
 
 def default_cache_dir() -> Path:
@@ -137,7 +137,7 @@ def verification_key(reg: RegisteredCalc, ctx: CalcContext, output: CalcOutput) 
 
 
 class VerificationCache:
-    """``verify=`` for :func:`reportgen.build.compute_document`: reuse rows or compute them."""
+    """``verify=`` for :func:`reportgen.pipeline.compute_document`: reuse rows or compute them."""
 
     def __init__(self, folder: Path | None):
         self.folder = folder / "verify" if folder is not None else None
@@ -214,7 +214,7 @@ def _verify_remote(reg: RegisteredCalc, ctx: CalcContext, output: CalcOutput):
 
 class EarlyVerification:
     """Start every uncached verification in worker processes before the document is
-    assembled; :func:`reportgen.build.compute_document` then collects the rows in order.
+    assembled; :func:`reportgen.pipeline.compute_document` then collects the rows in order.
 
     Each calc is computed once more here (milliseconds) to hand its output to the
     worker; compute is deterministic, so the rows are those the serial path would make.
@@ -227,7 +227,7 @@ class EarlyVerification:
         self.outputs: list[CalcOutput] = []
 
     def start(self, job, plugins) -> None:
-        from .build import calc_context
+        from reportgen.document.compute import calc_context
 
         for spec in job.calcs:
             reg = plugins.calcs[spec.plugin]

@@ -15,9 +15,9 @@ from typing import Any
 
 import pluggy
 
-from . import hookspecs
-from .calc import CalcType
-from .errors import ExitCode, PluginError
+from reportgen.calc import hookspecs
+from reportgen.calc.sheet import CalcType
+from reportgen.errors import ExitCode, PluginError
 
 
 @dataclass(frozen=True, slots=True)
@@ -66,7 +66,7 @@ class PluginSet:
 
 
 def _context() -> dict[str, Any]:
-    from . import __version__
+    from reportgen import __version__
 
     return {"api_version": hookspecs.API_VERSION, "reportgen_version": __version__}
 
@@ -161,7 +161,7 @@ def _check_calc_type(ct: object, plugin: str, dist: str) -> str:
         return f"calc type {type(ct).__name__} has no name"
     api = getattr(ct, "api_version", None)
     if api not in hookspecs.SUPPORTED_API_VERSIONS:
-        from . import __version__
+        from reportgen import __version__
 
         supported = ", ".join(str(v) for v in sorted(hookspecs.SUPPORTED_API_VERSIONS))
         return (f"calc type '{ct.name}' of plugin '{plugin}' (package {dist}) targets"

@@ -13,7 +13,8 @@ import tempfile
 from pathlib import Path
 from typing import Any
 
-from .archive import (
+from reportgen.errors import ExitCode, JobError, Problem, ReportgenError
+from reportgen.package.archive import (
     LIBRARIES,
     LOCK_NAME,
     AlteredPackage,
@@ -26,7 +27,6 @@ from .archive import (
     open_package,
     safe_name,
 )
-from .errors import ExitCode, JobError, Problem, ReportgenError
 
 # ---------------------------------------------------------------- comparing results
 
@@ -124,7 +124,7 @@ def environment_differences(manifest: dict[str, Any], rebuilt: dict[str, Any],
     The manifest names the main libraries; the lock file, when the package has one, every
     distribution that was installed.
     """
-    from . import __version__
+    from reportgen import __version__
 
     out = []
     now = {"python": platform.python_version(), "reportgen": __version__,
@@ -164,9 +164,9 @@ def environment_differences(manifest: dict[str, Any], rebuilt: dict[str, Any],
 
 def verify_one(path: str, rtol: float) -> dict[str, Any]:
     """Verify one package in this process; never raises (the outcome is data)."""
-    from .build import compute_document
-    from .commands import error_text, load_plugins
-    from .results import results_data
+    from reportgen.cli.commands import error_text, load_plugins
+    from reportgen.document.compute import compute_document
+    from reportgen.document.results import results_data
 
     out: dict[str, Any] = {"package": path, "differences": [], "environment": [],
                            "kind": "package"}
@@ -237,14 +237,14 @@ def package_files(targets: list[Path]) -> list[Path]:
 
 def verify_command(args: Any) -> int:
     """Verify each package (or each PDF in a folder); exit with the worst outcome."""
-    from .calcset import run_tasks
-    from .cli import default_workers
+    from reportgen.cli import default_workers
+    from reportgen.pipeline.sets import run_tasks
 
     rtol = float(args.rtol)
     if not (rtol >= 0 and math.isfinite(rtol)):
         raise JobError(f"--rtol must be a finite number ≥ 0, found {args.rtol}")
     targets = list(args.packages)
-    from .outputs import recover
+    from reportgen.pipeline.commit import recover
 
     for folder in dict.fromkeys(t if t.is_dir() else t.parent for t in targets):
         for note in recover(folder):  # a commit a killed build left half done
@@ -289,7 +289,7 @@ def extract_command(package: Path, folder: Path) -> int:
     control character, or collides with another, refuses the whole extraction (exit 2,
     nothing written): such a file was not made by this tool.
     """
-    from .pipeline import atomic_write
+    from reportgen.pipeline.plan import atomic_write
 
     package = Path(package)
     files = embedded_of(package)

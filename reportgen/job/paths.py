@@ -11,7 +11,7 @@ import stat
 from pathlib import Path
 from typing import Literal
 
-from .errors import JobError, Problem
+from reportgen.errors import JobError, Problem
 
 Kind = Literal["file", "folder"]
 

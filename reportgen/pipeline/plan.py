@@ -12,12 +12,14 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .archive import embedded_files
-from .build import compute_document
-from .errors import ExitCode, JobError, Problem
-from .jobfile import Job, load_job
-from .model import Document
-from .outputs import (  # noqa: F401 - STALE_PART_SECONDS, atomic_write: used from here
+from reportgen.calc.plugin_set import PluginSet
+from reportgen.document.compute import compute_document
+from reportgen.document.results import results_bytes
+from reportgen.errors import ExitCode, JobError, Problem
+from reportgen.job.load import Job, load_job
+from reportgen.model import Document
+from reportgen.package.archive import embedded_files
+from reportgen.pipeline.commit import (  # noqa: F401 - STALE_PART_SECONDS, atomic_write: used from here
     STALE_PART_SECONDS,
     Claim,
     atomic_write,
@@ -30,9 +32,7 @@ from .outputs import (  # noqa: F401 - STALE_PART_SECONDS, atomic_write: used fr
     refuse_existing,
     sweep_stale_parts,
 )
-from .plugins import PluginSet
-from .results import results_bytes
-from .split import Later
+from reportgen.pipeline.fork import Later
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -109,16 +109,16 @@ def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
     Returns the prepared package and an iterator over the figures still being drawn
     (empty unless ``later``): with ``later`` the layout may start before they exist.
     """
-    from .archive import manifest_bytes
-    from .render.assets import start_assets
-    from .render.html import render_html
-    from .templates import firm_logo, jinja_hook
+    from reportgen.package.archive import manifest_bytes
+    from reportgen.render.assets import start_assets
+    from reportgen.render.html import render_html
+    from reportgen.render.logo import firm_logo, jinja_hook
 
     template_dir = opts.template_dir or job.template_dir
     pending = start_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
                            workers=opts.workers, pool=pool, prefetched=prefetched)
     if preload and pending.parallel:
-        from .render.pdf import preload_renderer
+        from reportgen.render.pdf import preload_renderer
 
         preload_renderer()  # import WeasyPrint while the workers draw
     staged, rest = pending.stage(later=later and pending.parallel)
@@ -136,7 +136,7 @@ def package_pdf(prep: Prepared, later: Later | None = None) -> tuple[bytes, dict
     Figures still being drawn come through ``later`` when the renderer paints them; one
     that does not come (its worker failed) is drawn here.
     """
-    from .render.pdf import RefusedResource, write_pdf
+    from reportgen.render.pdf import RefusedResource, write_pdf
 
     images = prep.images
     got: dict[str, bytes] = {}
@@ -156,7 +156,7 @@ def package_pdf(prep: Prepared, later: Later | None = None) -> tuple[bytes, dict
             raise
         # only a firm theme's templates can ask for a file or an embedding (job text is
         # escaped): the theme is at fault
-        from .errors import ThemeError
+        from reportgen.errors import ThemeError
 
         raise ThemeError(Problem(str(prep.roots[0]), f"a template of this theme: {exc}")
                          ) from exc
@@ -179,7 +179,7 @@ def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
     preflight(path, [pdf_path, results_path])
     pool = None
     if opts.split and opts.workers > 1:
-        from .render.assets import warm_pool
+        from reportgen.render.assets import warm_pool
 
         pool = warm_pool(opts.workers)  # drawing workers load the typesetter meanwhile
     try:  # the drawings stop the pool at their end (render.assets.Drawings)
@@ -197,8 +197,8 @@ def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, po
     if pool is not None:
         # Verification and drawing start in the workers now, side by side, instead of
         # one after the other (reportgen.cache.EarlyVerification, render.assets.prefetch).
-        from .cache import EarlyVerification
-        from .render.assets import prefetch
+        from reportgen.render.assets import prefetch
+        from reportgen.store import EarlyVerification
 
         verify = EarlyVerification(verify, pool)
         verify.start(job, plugins)
@@ -207,7 +207,7 @@ def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, po
                               use_cache=opts.use_cache, pool=pool)
     doc = compute_document(job, plugins, verify=verify)
     if job.previous_package is not None:
-        from .archive import changes_since
+        from reportgen.package.archive import changes_since
 
         doc = changes_since(doc, job)
     if opts.final:
@@ -241,13 +241,13 @@ def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
 
     ``before()`` runs here before the compute, or, with a split, while the child starts it.
     """
-    from .split import can_split, run_split_stream
+    from reportgen.pipeline.fork import can_split, run_split_stream
 
     later: Later | None = None
     if opts.split and can_split():
         # compute in a forked child while WeasyPrint imports here; the figures it is
         # still drawing arrive while the layout runs (reportgen.split)
-        from .render.pdf import preload_renderer
+        from reportgen.render.pdf import preload_renderer
 
         def meanwhile() -> None:
             preload_renderer()
@@ -274,12 +274,12 @@ def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
             later.close()
     job, doc = prep.job, prep.doc
     if opts.self_check:
-        from .selfcheck import self_check
+        from reportgen.render.selfcheck import self_check
 
         self_check(pdf, doc, embedded=[f.name for f in prep.files])
     outputs = [(f"{job.stem}.results.json", prep.results), (f"{job.stem}.pdf", pdf)]
     if opts.html:
-        from .render.assets import inline_assets
+        from reportgen.render.assets import inline_assets
 
         outputs.insert(0, (f"{job.stem}.html",
                            inline_assets(prep.html, payloads).encode("utf-8")))
@@ -326,7 +326,7 @@ def commit_package(made: MadePackage, opts: BuildOptions, claim: Claim) -> Build
         sweep_stale_parts(out_dir, [*(target for target, _ in outputs), journal])
         locks = [lock]
         if (out_dir / "register.json").exists():  # a set's register that lists it, too
-            from .calcset import register_with
+            from reportgen.pipeline.sets import register_with
 
             locks.append(claim.wait("register"))
             outputs += register_with(out_dir, made)
@@ -355,7 +355,7 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
 
 def verification_cache(opts: BuildOptions):
     """Reuse independent-check rows from the cache folder unless --no-cache."""
-    from .cache import VerificationCache, default_cache_dir
+    from reportgen.store import VerificationCache, default_cache_dir
 
     return VerificationCache((opts.cache_dir or default_cache_dir()) if opts.use_cache else None)
 

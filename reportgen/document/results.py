@@ -6,8 +6,8 @@ import json
 import math
 from typing import Any
 
-from .model import Document, Quantity
-from .units import DIMENSIONS
+from reportgen.model import Document, Quantity
+from reportgen.units import DIMENSIONS
 
 RESULTS_FORMAT = "reportgen.results/1"
 

@@ -25,7 +25,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .errors import JobError, Problem
+from reportgen.errors import JobError, Problem
 
 JOURNAL_SUFFIX = ".reportgen-journal"
 JOURNAL_FORMAT = "reportgen.commit/1"
@@ -46,7 +46,7 @@ def package_names(path: Path) -> tuple[str, str, str] | None:
     """(calc number, revision, file stem) read from a job file without validating the
     rest of it, or None if they cannot be read; :func:`reportgen.jobfile.load_job` then
     reports why. Cheap (no units, no plugins): the command reads it before the build."""
-    from .jobfile import file_stem, parse_job_toml, read_job_bytes
+    from reportgen.job.load import file_stem, parse_job_toml, read_job_bytes
 
     try:
         raw = parse_job_toml(str(path), read_job_bytes(path))

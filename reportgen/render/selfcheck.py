@@ -15,9 +15,9 @@ from collections import Counter
 from collections.abc import Iterable, Iterator
 from typing import Any
 
-from .errors import RenderError
-from .model import Document
-from .render.html import quantity_parts
+from reportgen.errors import RenderError
+from reportgen.model import Document
+from reportgen.render.html import quantity_parts
 
 
 def _norm(text: str) -> str:
@@ -324,7 +324,7 @@ def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None)
 
 
 def _embedded_problems(p, expected: list[str]) -> list[str]:
-    from .archive import page_attachments
+    from reportgen.package.archive import page_attachments
 
     names = sorted(str(n) for n in p.attachments)
     out = [f"file {n} is attached to a page" for n in page_attachments(p)]

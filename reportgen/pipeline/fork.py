@@ -22,8 +22,8 @@ import threading
 from collections.abc import Callable, Iterable, Iterator
 from typing import Any
 
-from .errors import ReportgenError
-from .lifeline import bind_to_parent
+from reportgen.errors import ReportgenError
+from reportgen.pipeline.lifeline import bind_to_parent
 
 
 def can_split() -> bool:

@@ -8,7 +8,7 @@ from __future__ import annotations
 import dataclasses
 from collections.abc import Callable
 
-from .model import Document
+from reportgen.model import Document
 
 
 def number_sections(doc: Document) -> Document:

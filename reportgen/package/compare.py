@@ -13,8 +13,8 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .archive import Package, open_package
-from .errors import ExitCode, JobError, Problem
+from reportgen.errors import ExitCode, JobError, Problem
+from reportgen.package.archive import Package, open_package
 
 #: results closer than this (relative) have not moved: float noise is not a change
 MOVE_RTOL = 1e-9
@@ -66,15 +66,15 @@ def _is_pdf(path: Path) -> bool:
 
 def load_side(path: Path, plugins: Any) -> Side:
     """A package (its embedded job and results) or a job file (computed, not rendered)."""
-    from .build import compute_document
-    from .jobfile import load_job
-    from .results import results_data
+    from reportgen.document.compute import compute_document
+    from reportgen.document.results import results_data
+    from reportgen.job.load import load_job
 
     if _is_pdf(path):
         pkg = open_package(path)
         si = None
         with tempfile.TemporaryDirectory(prefix="reportgen-diff-") as tmp:
-            from .archive import load_embedded_job
+            from reportgen.package.archive import load_embedded_job
 
             try:
                 job = load_embedded_job(pkg, plugins, Path(tmp))
@@ -256,7 +256,7 @@ def describe_changes(previous_results: dict[str, Any], new_results: dict[str, An
 
 def diff_command(old: Path, new: Path) -> int:
     """Print what changed from ``old`` to ``new``; exit 0 (2 when either is invalid)."""
-    from .commands import load_plugins
+    from reportgen.cli.commands import load_plugins
 
     plugins = load_plugins()
     a, b = load_side(Path(old), plugins), load_side(Path(new), plugins)

@@ -10,8 +10,9 @@ import functools
 import re
 from typing import Any
 
-from .calc import InputSpec
-from .jobfile import (
+from reportgen.calc.plugin_set import PluginSet
+from reportgen.calc.sheet import InputSpec
+from reportgen.job.load import (
     CALC_KEYS,
     DATE_PATTERN,
     HISTORY_KEYS,
@@ -26,8 +27,7 @@ from .jobfile import (
     UNIT_SYSTEMS,
     empty_date_allowed,
 )
-from .plugins import PluginSet
-from .units import DIMENSIONS, STANDARD_GRAVITY
+from reportgen.units import DIMENSIONS, STANDARD_GRAVITY
 
 SCHEMA_ID = "https://reportgen.invalid/schema/job-1.json"
 
@@ -102,7 +102,7 @@ def _tokens() -> dict[str, set[str]]:
     Spellings with a digit are left out: the parser refuses digits in a unit (pint would
     evaluate arithmetic).
     """
-    from .units import _registry
+    from reportgen.units import _registry
 
     ureg = _registry()
     wanted = {cls: ureg.get_dimensionality(dim) if dim else ureg.get_dimensionality("")

@@ -16,13 +16,13 @@ import traceback
 from collections.abc import Sequence
 from pathlib import Path
 
-from .errors import ExitCode, JobError, ReportgenError
+from reportgen.errors import ExitCode, JobError, ReportgenError
 
 PROG = "reportgen"
 
 
 def _parser() -> argparse.ArgumentParser:
-    from . import __version__
+    from reportgen import __version__
 
     p = argparse.ArgumentParser(
         prog=PROG, description="Build vibration calculation packages (PDF + results.json)"
@@ -115,7 +115,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return ExitCode.INVALID_INPUT
     debug = bool(getattr(args, "debug", False))
     if args.command in ("build", "demo", "verify"):
-        from .lifeline import install_fork_hook
+        from reportgen.pipeline.lifeline import install_fork_hook
 
         install_fork_hook()  # every helper process dies with this one
     try:
@@ -141,7 +141,7 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 def _interrupted() -> str:
     """What an interrupt left on disk, in words: exactly the files this run committed."""
-    from .outputs import committed
+    from reportgen.pipeline.commit import committed
 
     if not committed:
         return "interrupted; nothing was committed (no file was written under a final name)"
@@ -202,31 +202,31 @@ def _print_error(exc: ReportgenError) -> None:
 def _dispatch(args: argparse.Namespace) -> int:
     cmd = args.command
     if cmd == "plugins":
-        from .commands import list_plugins
+        from reportgen.cli.commands import list_plugins
 
         return list_plugins()
     if cmd == "check":
-        from .commands import check_jobs
+        from reportgen.cli.commands import check_jobs
 
         return check_jobs(args.jobs)
     if cmd == "schema":
-        from .commands import print_schema
+        from reportgen.cli.commands import print_schema
 
         return print_schema()
     if cmd in ("build", "demo"):
-        from .commands import build_command
+        from reportgen.cli.commands import build_command
 
         return build_command(args)
     if cmd == "verify":
-        from .verify import verify_command
+        from reportgen.package.verify import verify_command
 
         return verify_command(args)
     if cmd == "extract":
-        from .verify import extract_command
+        from reportgen.package.verify import extract_command
 
         return extract_command(args.package, args.dir)
     if cmd == "diff":
-        from .diff import diff_command
+        from reportgen.package.compare import diff_command
 
         return diff_command(args.old, args.new)
     if cmd == "completion":
@@ -235,7 +235,7 @@ def _dispatch(args: argparse.Namespace) -> int:
         print(shtab.complete(_parser(), shell=args.shell), end="")
         return int(ExitCode.OK)
     if cmd == "new-plugin":
-        from .scaffold import new_plugin
+        from reportgen.cli.scaffold import new_plugin
 
         return new_plugin(args.name, args.dir)
     raise JobError(f"unknown command {cmd}")

@@ -12,8 +12,8 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any, ClassVar, Literal
 
-from . import formula as _formula
-from .model import (
+from reportgen import formula as _formula
+from reportgen.model import (
     Block,
     Check,
     Equation,

@@ -15,7 +15,7 @@ import tempfile
 from pathlib import Path
 from string import Template
 
-from .errors import ExitCode, JobError, Problem
+from reportgen.errors import ExitCode, JobError, Problem
 
 __all__ = ["new_plugin", "plugin_files", "validate_name"]
 
@@ -45,7 +45,7 @@ def validate_name(name: str) -> str:
 
 
 def _installed_calc_types() -> set[str]:
-    from .plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import get_plugin_manager
 
     return set(get_plugin_manager().calcs)
 
@@ -55,7 +55,7 @@ def _class_name(name: str) -> str:
 
 
 def _requirement() -> str:
-    from . import __version__
+    from reportgen import __version__
 
     m = re.match(r"(\d+)\.(\d+)", __version__)
     if not m or __version__.startswith("0.0.0"):
@@ -65,7 +65,7 @@ def _requirement() -> str:
 
 def plugin_files(name: str) -> dict[str, str]:
     """The files of a new plugin package, relative path -> text."""
-    from .hookspecs import API_VERSION
+    from reportgen.calc.hookspecs import API_VERSION
 
     values = {"name": name, "cls": _class_name(name), "dist": name.replace("_", "-"),
               "requirement": _requirement(), "api": str(API_VERSION)}

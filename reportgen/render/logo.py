@@ -12,8 +12,8 @@ import re
 from pathlib import Path
 from typing import Any
 
-from .model import Document
-from .plugins import PluginSet
+from reportgen.calc.plugin_set import PluginSet
+from reportgen.model import Document
 
 LOGO_NAMES = (("logo.svg", "image/svg+xml"), ("logo.png", "image/png"))
 
@@ -24,8 +24,8 @@ def firm_logo(template_dir: Path | None) -> str | None:
     A logo that is a symbolic link, not a regular file, over the theme file limit, or
     not plain vector art / a PNG is refused (ThemeError, exit 2), never skipped.
     """
-    from .render.theme import THEME_FILE_LIMIT, theme_error
-    from .safepath import TooLarge, UnsafePath, read_inside
+    from reportgen.job.paths import TooLarge, UnsafePath, read_inside
+    from reportgen.render.theme import THEME_FILE_LIMIT, theme_error
 
     if template_dir is None:
         return None
@@ -160,7 +160,7 @@ def _sanitise_svg(data: bytes, path: Path | None = None) -> bytes:
     The bytes are kept as they are (the renderer parses them with the same parser the
     screen used): the screen refuses, it never rewrites.
     """
-    from .render.theme import theme_error
+    from reportgen.render.theme import theme_error
 
     problem = _svg_problem(data)
     if problem is not None:
@@ -177,7 +177,7 @@ _PNG_MAX_PIXELS = 25_000_000
 
 
 def _check_png(data: bytes, path: Path) -> None:
-    from .render.theme import theme_error
+    from reportgen.render.theme import theme_error
 
     if data[:8] != _PNG_SIGNATURE or data[12:16] != b"IHDR" or len(data) < 33:
         raise theme_error(path, "firm logo refused: not a PNG file (no PNG signature)")
@@ -189,7 +189,7 @@ def _check_png(data: bytes, path: Path) -> None:
 
 def jinja_hook(doc: Document, plugins: PluginSet | None) -> Any:
     """A callable that runs every plugin's ``reportgen_prepare_jinja_env`` on the env."""
-    from .hookspecs import API_VERSION
+    from reportgen.calc.hookspecs import API_VERSION
 
     if plugins is None or plugins.pm is None:
         return None
@@ -206,7 +206,7 @@ def jinja_hook(doc: Document, plugins: PluginSet | None) -> Any:
             try:
                 impl.function(**{k: kwargs[k] for k in impl.argnames})
             except Exception as exc:
-                from .errors import PluginError
+                from reportgen.errors import PluginError
 
                 package = plugins.packages.get(impl.plugin_name, ("?", "?"))[0]
                 raise PluginError(f"raised {type(exc).__name__}: {exc}",

@@ -11,11 +11,13 @@ import platform
 from collections.abc import Callable, Mapping
 from typing import Any
 
-from . import __version__
-from .calc import CalcContext, CalcOutput, InputSpec
-from .errors import PluginError, ReportgenError, VerificationError
-from .jobfile import CalcSpec, Job
-from .model import (
+from reportgen import __version__
+from reportgen.calc.plugin_set import PluginSet, RegisteredCalc
+from reportgen.calc.sheet import CalcContext, CalcOutput, InputSpec
+from reportgen.document.transforms import apply_transforms
+from reportgen.errors import PluginError, ReportgenError, VerificationError
+from reportgen.job.load import CalcSpec, Job
+from reportgen.model import (
     BLOCK_TYPES,
     Check,
     Document,
@@ -28,9 +30,7 @@ from .model import (
     Section,
     VerificationRow,
 )
-from .plugins import PluginSet, RegisteredCalc
-from .transforms import apply_transforms
-from .units import DIMENSIONS
+from reportgen.units import DIMENSIONS
 
 VerifyHook = Callable[[RegisteredCalc, CalcContext, CalcOutput], Any]
 
@@ -209,7 +209,7 @@ def check_output(out: Any) -> str:
 def _equation_problem(eq: Equation) -> str:
     """An equation block whose substitution does not give its printed result is refused:
     a reader re-doing the arithmetic must get the number the package states."""
-    from .formula import FormulaError, evaluate, names_in
+    from reportgen.formula import FormulaError, evaluate, names_in
 
     try:
         names = names_in(eq.expression)
