@@ -34,7 +34,7 @@ from reportgen import (
     VerificationRow,
     hookimpl,
 )
-from reportgen.calc.sheet import linear_validity_check
+from reportgen.calc import linear_validity_check
 from reportgen.units import format_number, table_display
 
 __version__ = "0.1.0"

@@ -21,8 +21,9 @@ from typing import Any
 
 import pytest
 
-from reportgen.calc.plugin_set import PluginSet, get_plugin_manager
-from reportgen.calc.sheet import CalcOutput, CalcType
+from reportgen.calc.plugin_set import PluginSet, load_plugin_set
+from reportgen.calc.sheet import CalcOutput
+from reportgen.calc.types import CalcType
 from reportgen.document.compute import compute_document
 from reportgen.formula import evaluate, names_in
 from reportgen.job.load import Job, load_job
@@ -115,7 +116,7 @@ def compute(job: Mapping[str, Any], plugins: PluginSet | None = None,
     """Load and compute a job dict (no rendering); returns the Document."""
     import tempfile
 
-    plugins = plugins or get_plugin_manager()
+    plugins = plugins or load_plugin_set()
     if folder is None:
         with tempfile.TemporaryDirectory() as tmp:
             return compute_document(load_job_dict(job, plugins, Path(tmp)), plugins)
@@ -173,7 +174,7 @@ def build_package(job: Mapping[str, Any], folder: Path, *, plugins: PluginSet | 
     """Build a job dict into ``folder`` (job.toml, out/...) through the real pipeline."""
     from reportgen.pipeline.plan import BuildOptions, build_job
 
-    plugins = plugins or get_plugin_manager()
+    plugins = plugins or load_plugin_set()
     folder.mkdir(parents=True, exist_ok=True)
     path = folder / "job.toml"
     path.write_text(job_toml(job), encoding="utf-8")
@@ -237,7 +238,7 @@ def assert_calc_contract(calc_type: CalcType, job_calc: Mapping[str, Any], folde
         assert spec.description, f"{spec.name}: no description"
     assert calc_type.sources, f"{calc_type.name} declares no published sources"
     job = make_job([{**job_calc, "plugin": calc_type.name}])
-    plugins = plugins or get_plugin_manager()
+    plugins = plugins or load_plugin_set()
     doc = compute(job, plugins, folder)
     section = doc.sections[0]
     assert section.results, "no results"
@@ -263,7 +264,7 @@ def assert_calc_contract(calc_type: CalcType, job_calc: Mapping[str, Any], folde
 @pytest.fixture
 def rg_plugins() -> PluginSet:
     """The installed plugin set, loaded fresh for the test."""
-    return get_plugin_manager()
+    return load_plugin_set()
 
 
 @pytest.fixture

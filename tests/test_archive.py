@@ -20,8 +20,8 @@ import pikepdf
 import pytest
 from conftest import assert_case
 
+from reportgen.calc.plugin_set import load_plugins
 from reportgen.cli import main
-from reportgen.cli.commands import load_plugins
 from reportgen.errors import JobError
 from reportgen.job.load import load_job
 from reportgen.package import archive
@@ -431,7 +431,8 @@ def _job_variant(tmp: Path, name: str, source: Path, replace: dict[str, str]) ->
 
 
 def test_diff_compares_inputs_results_and_flipped_checks(tmp_path, check_cases):
-    from reportgen.package.compare import compare, load_side
+    from reportgen.package.compare import compare
+    from reportgen.package.revisions import load_side
 
     case = check_cases["A1_sdof_free_underdamped"]  # invented example, textbook formulas
     inputs = {'mass = "1200 kg"': 'mass = "50 kg"', 'stiffness = "350 kN/m"':

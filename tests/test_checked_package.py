@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from reportgen import CalcType, InputSpec, Sheet, VerificationRow, hookimpl
-from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.errors import RenderError
 from reportgen.render.selfcheck import self_check
@@ -103,7 +103,7 @@ class _NoVerify(_OffByOne):
 def _test_plugins():
     module = types.SimpleNamespace(
         reportgen_register_calc_types=hookimpl(lambda: [_OffByOne(), _NoVerify()]))
-    return get_plugin_manager(extra=[("test_plugins", module)])
+    return load_plugin_set(extra=[("test_plugins", module)])
 
 
 def test_disagreeing_verification_is_exit_3_and_writes_nothing(tmp_path):
@@ -215,7 +215,7 @@ def test_folder_build_writes_register(tmp_path, capsys):
 
 
 def test_every_declared_verification_case_is_exercised_by_the_plugin_tests():
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     for name, reg in plugins.calcs.items():
         if reg.package != "reportgen":
             continue

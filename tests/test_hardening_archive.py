@@ -18,8 +18,8 @@ from pathlib import Path
 import pikepdf
 import pytest
 
+from reportgen.calc.plugin_set import load_plugins
 from reportgen.cli import main
-from reportgen.cli.commands import load_plugins
 from reportgen.package import archive
 
 REPO = Path(__file__).resolve().parent.parent

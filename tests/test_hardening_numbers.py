@@ -14,7 +14,7 @@ from hardening_d_support import job_text, run, write_job
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.document.compute import compute_document
 from reportgen.errors import JobError
 from reportgen.formula import to_latex
@@ -23,7 +23,7 @@ from reportgen.model import Equation, Quantity
 from reportgen.render.math import equation_latex
 from reportgen.render.mathsvg import latex_svg
 
-PLUGINS = get_plugin_manager()
+PLUGINS = load_plugin_set()
 
 BASE = {
     "isolation": {"mass": "1200 kg", "speed": "1480 rpm", "stiffness": "700 kN/m"},

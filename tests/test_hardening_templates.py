@@ -470,12 +470,12 @@ def _with_page_attachment(src: Path, dest: Path, data: bytes) -> None:
 
 @pytest.fixture(scope="module")
 def plain_package(tmp_path_factory):
-    from reportgen.calc.plugin_set import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
     from reportgen.pipeline.plan import BuildOptions, build_job
 
     root = tmp_path_factory.mktemp("plain")
     job = _job(root / "job")
-    result = build_job(job, get_plugin_manager(),
+    result = build_job(job, load_plugin_set(),
                        BuildOptions(out_dir=root / "out", use_cache=False, workers=1))
     return result.pdf
 

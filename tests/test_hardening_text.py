@@ -193,7 +193,7 @@ def test_right_to_left_and_ligature_titles_pass_the_self_check(tmp_path):
     both, and still refuses a title that is not on the page."""
     import dataclasses
 
-    from reportgen.calc.plugin_set import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
     from reportgen.document.compute import compute_document
     from reportgen.errors import RenderError
     from reportgen.job.load import load_job
@@ -205,7 +205,7 @@ def test_right_to_left_and_ligature_titles_pass_the_self_check(tmp_path):
     code, _, err = run(["build", str(path), "--out", str(out), "--jobs", "1"])
     assert code == 0, err
     pdf = (out / "QEP-2417-V-301-A.pdf").read_bytes()
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     doc = compute_document(load_job(path, plugins), plugins)
     self_check(pdf, doc)
     for wrong in ("משאבה P2 על קפיצים", "مضخة P1 على نوابص", "Pump ﬁve ﬂows"):

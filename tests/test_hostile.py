@@ -19,7 +19,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.errors import JobError, RenderError, ThemeError
 from reportgen.job.load import load_job
@@ -310,7 +310,7 @@ def test_build_with_hostile_logo_fails_and_writes_nothing(tmp_path, no_network, 
 
 # ---------------------------------------------------------------- random documents
 
-PLUGINS = get_plugin_manager()
+PLUGINS = load_plugin_set()
 _INPUT_NAMES = sorted({s.name for n in PLUGINS.names() for s in
                        PLUGINS.get(n).calc_type.inputs + PLUGINS.get(n).calc_type.criteria})
 _UNITS = ["kg", "g", "lb", "N/m", "kN/m", "lbf/in", "N*s/m", "m", "mm", "in", "s", "ms", "h",

@@ -26,7 +26,7 @@ from scipy import signal
 from scipy.optimize import minimize_scalar
 
 from reportgen import Caution, Figure, JobError, Table
-from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.job.load import load_job
 from reportgen.testing import (
@@ -443,7 +443,7 @@ def test_bad_input_names_the_field(tmp_path, inputs, field, words):
     path = tmp_path / "job.toml"
     path.write_text(job_toml(make_job([_calc(inputs)])), encoding="utf-8")
     with pytest.raises(JobError) as err:
-        load_job(path, get_plugin_manager())
+        load_job(path, load_plugin_set())
     problems = [p for p in err.value.problems if p.field == field]
     assert problems, [str(p) for p in err.value.problems]
     assert words in problems[0].message and problems[0].calc == "calc-1"

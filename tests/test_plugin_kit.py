@@ -18,7 +18,7 @@ import pytest
 
 from reportgen import cli
 from reportgen.calc import hookspecs
-from reportgen.calc.plugin_set import get_plugin_manager
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.calc.sheet import CalcContext
 from reportgen.errors import ExitCode, JobError, PluginError, VerificationError
 from reportgen.testing import (
@@ -45,7 +45,7 @@ def load_fixture(name: str):
 
 
 def plugins_with(*names: str):
-    return get_plugin_manager(extra=[(n, load_fixture(n)) for n in names])
+    return load_plugin_set(extra=[(n, load_fixture(n)) for n in names])
 
 
 def calc_table(plugin: str, **inputs) -> dict:
@@ -234,7 +234,7 @@ def test_a_plugin_that_fails_to_register_is_listed_and_the_rest_load(fixture, co
 
 def test_import_error_is_listed_as_broken(installed):
     installed("import_error", "raises_in_compute")
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     (broken,) = [b for b in plugins.broken if b.plugin == "import_error"]
     assert broken.package == FIXTURE_DIST
     assert "ModuleNotFoundError" in broken.error and "qep_missing_site_library" in broken.error

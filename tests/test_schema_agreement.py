@@ -21,7 +21,7 @@ from typing import Any
 
 import pytest
 
-from reportgen.cli.commands import load_plugins
+from reportgen.calc.plugin_set import load_plugins
 from reportgen.errors import JobError
 from reportgen.job.load import load_job
 from reportgen.job.schema import KNOWN_DIFFERENCES, job_schema, unit_pattern

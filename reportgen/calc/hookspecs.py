@@ -16,7 +16,7 @@ from typing import TYPE_CHECKING, Any
 import pluggy
 
 if TYPE_CHECKING:
-    from reportgen.calc.sheet import CalcType
+    from reportgen.calc.types import CalcType
 
 PROJECT = "reportgen"
 ENTRY_POINT_GROUP = "reportgen.calcs"

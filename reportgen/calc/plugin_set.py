@@ -16,7 +16,7 @@ from typing import Any
 import pluggy
 
 from reportgen.calc import hookspecs
-from reportgen.calc.sheet import CalcType
+from reportgen.calc.types import CalcType
 from reportgen.errors import ExitCode, PluginError
 
 
@@ -66,12 +66,12 @@ class PluginSet:
 
 
 def _context() -> dict[str, Any]:
-    from reportgen import __version__
+    from reportgen._version import __version__
 
     return {"api_version": hookspecs.API_VERSION, "reportgen_version": __version__}
 
 
-def get_plugin_manager(extra: Iterable[tuple[str, object]] = (), *,
+def load_plugin_set(extra: Iterable[tuple[str, object]] = (), *,
                        entry_points: bool = True) -> PluginSet:
     """Load every plugin of the entry-point group (and ``extra`` (name, module) pairs).
 
@@ -161,7 +161,7 @@ def _check_calc_type(ct: object, plugin: str, dist: str) -> str:
         return f"calc type {type(ct).__name__} has no name"
     api = getattr(ct, "api_version", None)
     if api not in hookspecs.SUPPORTED_API_VERSIONS:
-        from reportgen import __version__
+        from reportgen._version import __version__
 
         supported = ", ".join(str(v) for v in sorted(hookspecs.SUPPORTED_API_VERSIONS))
         return (f"calc type '{ct.name}' of plugin '{plugin}' (package {dist}) targets"
@@ -170,3 +170,10 @@ def _check_calc_type(ct: object, plugin: str, dist: str) -> str:
                 f" {hookspecs.API_VERSION}, or a reportgen that supports API {api!r})")
     return ""
 
+
+
+def load_plugins() -> PluginSet:
+    """The installed plugin set, refused (exit 2) if two plugins declare one calc type."""
+    plugins = load_plugin_set()
+    plugins.raise_for_conflicts()
+    return plugins

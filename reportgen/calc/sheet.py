@@ -1,68 +1,29 @@
-"""The plugin author's API: declare a calc type's inputs, compute into blocks, verify.
+"""What a calc computes with: the context the core hands it (SI inputs, data files),
+and the Sheet it writes its working onto, in reading order, into a CalcOutput.
 
-A calc type is an object registered through the ``reportgen_register_calc_types``
-hook. The core validates the job's inputs against :attr:`CalcType.inputs`, calls
-:meth:`CalcType.compute` with a :class:`CalcContext` and then
-:meth:`CalcType.verify` for the independent second method.
+A calc type (:mod:`reportgen.calc.spec`) is registered through the
+``reportgen_register_calc_types`` hook; the core calls its ``compute`` with a
+:class:`CalcContext`, then its ``verify`` for the independent second method.
 """
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Any, ClassVar, Literal
+from typing import Any
 
 from reportgen import formula as _formula
+from reportgen.calc.spec import DataFile
 from reportgen.model import (
     Block,
     Check,
     Equation,
     Quantity,
     ResultRow,
-    Source,
     Status,
-    VerificationRow,
 )
 
-__all__ = ["CalcContext", "CalcOutput", "CalcType", "InputSpec", "Sheet", "VerificationCase",
-           "linear_validity_check", "on_limit"]
-
-
-@dataclass(frozen=True, kw_only=True, slots=True)
-class InputSpec:
-    """One input (or criterion) a calc type accepts.
-
-    ``dimension`` is a name from :data:`reportgen.units.DIMENSIONS`. ``default`` is in SI;
-    ``required=False`` with no default means optional and absent unless given.
-    ``kind`` "pair" is two quantities (a range), "points" a list of [x, y] pairs,
-    "integer" a whole number.
-    """
-
-    name: str
-    symbol: str
-    description: str
-    dimension: str = "dimensionless"
-    default: float | None = None
-    required: bool = True
-    minimum: float | None = None
-    maximum: float | None = None
-    positive: bool = False  # strictly greater than zero
-    kind: Literal["quantity", "integer", "pair", "points"] = "quantity"
-    default_note: str = ""  # why the default is what it is (shown as an assumption)
-
-    @property
-    def optional(self) -> bool:
-        return not self.required or self.default is not None
-
-
-@dataclass(frozen=True, kw_only=True, slots=True)
-class VerificationCase:
-    """A published check value that a plugin's own test suite exercises."""
-
-    id: str
-    description: str
-    source: str
-    status: str  # e.g. "formula_confirmed_example_invented", "from_memory"
+__all__ = ["CalcContext", "CalcOutput", "Sheet", "linear_validity_check", "on_limit"]
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -76,7 +37,12 @@ class CalcContext:
     criteria: Mapping[str, Any]
     criteria_given: frozenset[str] = frozenset()
     units: str = "SI"
-    options: Mapping[str, Any] = field(default_factory=dict)
+    #: the data files the job names ("file" inputs), by input name; read them, never write
+    files: Mapping[str, DataFile] = field(default_factory=dict)
+
+    def file_hashes(self) -> dict[str, str]:
+        """{input name: SHA-256} of the data files: what the files add to a cache key."""
+        return {name: f.sha256 for name, f in sorted(self.files.items())}
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -197,35 +163,3 @@ def _compare(value: float, limit: float, comparison: str) -> bool:
         return comparison in ("<=", ">=")
     ops = {"<=": value <= limit, ">=": value >= limit, "<": value < limit, ">": value > limit}
     return ops[comparison]
-
-
-class CalcType:
-    """Base class for a calc type. Subclass, set the class attributes, implement compute.
-
-    ``name`` is what a job's ``plugin = "..."`` names; ``api_version`` is the hook API
-    version the plugin targets (see :data:`reportgen.hookspecs.API_VERSION`).
-    """
-
-    name: ClassVar[str] = ""
-    title: ClassVar[str] = ""
-    version: ClassVar[str] = "0.0.0"
-    api_version: ClassVar[int] = 1
-    purpose: ClassVar[str] = ""
-    inputs: ClassVar[tuple[InputSpec, ...]] = ()
-    criteria: ClassVar[tuple[InputSpec, ...]] = ()
-    sources: ClassVar[tuple[Source, ...]] = ()
-    verification_cases: ClassVar[tuple[VerificationCase, ...]] = ()
-    #: Largest number of points in any generated time or frequency series.
-    max_points: ClassVar[int] = 20000
-
-    def validate(self, inputs: Mapping[str, Any], given: frozenset[str],
-                 criteria: Mapping[str, Any]) -> Sequence[tuple[str, str]]:
-        """Cross-field checks after each input passed its own: (field, message) pairs."""
-        return ()
-
-    def compute(self, ctx: CalcContext) -> CalcOutput:  # pragma: no cover - abstract
-        raise NotImplementedError
-
-    def verify(self, ctx: CalcContext, output: CalcOutput) -> Sequence[VerificationRow] | None:
-        """Second, independent route to the key results. None: not independently verified."""
-        return None

@@ -22,7 +22,7 @@ PROG = "reportgen"
 
 
 def _parser() -> argparse.ArgumentParser:
-    from reportgen import __version__
+    from reportgen._version import __version__
 
     p = argparse.ArgumentParser(
         prog=PROG, description="Build vibration calculation packages (PDF + results.json)"
@@ -218,15 +218,15 @@ def _dispatch(args: argparse.Namespace) -> int:
 
         return build_command(args)
     if cmd == "verify":
-        from reportgen.package.verify import verify_command
+        from reportgen.cli.commands import verify_command
 
         return verify_command(args)
     if cmd == "extract":
-        from reportgen.package.verify import extract_command
+        from reportgen.cli.commands import extract_command
 
         return extract_command(args.package, args.dir)
     if cmd == "diff":
-        from reportgen.package.compare import diff_command
+        from reportgen.cli.commands import diff_command
 
         return diff_command(args.old, args.new)
     if cmd == "completion":
@@ -239,10 +239,6 @@ def _dispatch(args: argparse.Namespace) -> int:
 
         return new_plugin(args.name, args.dir)
     raise JobError(f"unknown command {cmd}")
-
-
-def default_workers() -> int:
-    return max(1, os.cpu_count() or 1)
 
 
 def run() -> None:
@@ -262,17 +258,9 @@ def run() -> None:
         sys.stdout.flush()  # a pipe is block-buffered: this is where a gone reader shows
     except BrokenPipeError:
         code = _stdout_gone()
+    from reportgen.pipeline.scheduler import leave_now
+
     leave_now(code)
-
-
-def leave_now(code: int) -> None:
-    """Flush what was printed (a pipe is block-buffered) and end the process at once."""
-    for stream in (sys.stdout, sys.stderr):
-        try:
-            stream.flush()
-        except (OSError, ValueError):
-            pass
-    os._exit(code)
 
 
 if __name__ == "__main__":  # pragma: no cover

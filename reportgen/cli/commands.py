@@ -1,29 +1,29 @@
-"""The work behind each CLI command (build, demo, plugins, check, schema).
+"""Every command of the command line: build, demo, plugins, check, schema, verify,
+extract, diff.
 
 Functions here return exit codes and print for a person; errors are raised as
-ReportgenErrors for :mod:`reportgen.cli` to report.
+ReportgenErrors for :mod:`reportgen.cli` to report. The work itself is done by the layers
+below (the pipeline builds, the package layer verifies and compares).
 """
 
 from __future__ import annotations
 
 import json
+import math
+import os
 import sys
 from importlib import resources
 from pathlib import Path
+from typing import Any
 
-from reportgen.calc.plugin_set import PluginSet, get_plugin_manager
-from reportgen.errors import ExitCode, JobError, PluginError, Problem, ReportgenError
+from reportgen.calc.plugin_set import load_plugin_set, load_plugins
+from reportgen.errors import ExitCode, JobError, Problem, ReportgenError
+from reportgen.job.load import job_files
 from reportgen.units import DIMENSIONS
 
 
-def load_plugins() -> PluginSet:
-    plugins = get_plugin_manager()
-    plugins.raise_for_conflicts()
-    return plugins
-
-
 def list_plugins() -> int:
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     for name in plugins.names():
         reg = plugins.calcs[name]
         ct = reg.calc_type
@@ -48,20 +48,6 @@ def list_plugins() -> int:
     if not plugins.calcs and not plugins.broken:
         print("no calc plugins installed")
     return int(ExitCode.INVALID_INPUT if plugins.conflicts else ExitCode.OK)
-
-
-def job_files(targets: list[Path]) -> list[Path]:
-    out: list[Path] = []
-    for t in targets:
-        if t.is_dir():
-            out.extend(sorted(p for p in t.glob("*.toml") if p.is_file()))
-        elif t.exists():
-            out.append(t)
-        else:
-            raise JobError(Problem(str(t), "no such file or folder"))
-    if not out:
-        raise JobError(Problem(", ".join(map(str, targets)), "no *.toml job files found"))
-    return out
 
 
 def check_jobs(targets: list[Path]) -> int:
@@ -89,12 +75,15 @@ def print_schema() -> int:
     return int(ExitCode.OK)
 
 
+def default_workers() -> int:
+    return max(1, os.cpu_count() or 1)
+
+
 def sample_jobs_dir() -> Path:
     return Path(str(resources.files("reportgen_samples")))
 
 
 def build_command(args) -> int:
-    from reportgen.cli import default_workers
     from reportgen.pipeline.plan import BuildOptions
 
     if args.command == "demo":
@@ -119,12 +108,32 @@ def build_command(args) -> int:
 
         require_dask()  # the install hint now, before anything is built
     if target.is_dir():
+        from reportgen.cli.progress import Progress
+        from reportgen.pipeline.register import REGISTER_JSON, REGISTER_PDF
         from reportgen.pipeline.sets import build_folder
 
-        code = build_folder(target, opts, workers=jobs, executor=executor,
-                            scheduler=scheduler, demo=args.command == "demo")
+        progress = Progress(len(job_files([target])), "building")
+        try:
+            result = build_folder(target, opts, workers=jobs, executor=executor,
+                                  scheduler=scheduler, demo=args.command == "demo",
+                                  on_done=progress.update)
+        finally:
+            progress.close()
+        for note in result.notes:
+            print(f"note: {note}", file=sys.stderr)
+        for o in result.outcomes:
+            if not o.get("ok"):
+                for line in o["error"].splitlines():
+                    print(f"error: {line}", file=sys.stderr)
+        built = result.built
+        if built:
+            print(f"register: {args.out / REGISTER_PDF}  {args.out / REGISTER_JSON}")
+        n_bad = len(result.outcomes) - len(built)
+        print(f"{len(built)} of {len(result.outcomes)} packages built"
+              + (f"; {n_bad} not built" if n_bad else "")
+              + f"; {sum(1 for o in built if o['checks_failed'])} with failing checks")
         _prune_cache(opts)
-        return code
+        return result.exit_code
     if not target.exists():
         raise JobError(Problem(str(target), "no such job file"))
     if executor != "local":
@@ -134,6 +143,8 @@ def build_command(args) -> int:
     plugins = load_plugins()
     opts = BuildOptions(**{**opts.__dict__, "workers": jobs, "split": True})
     result = build_job(target, plugins, opts)
+    for note in result.notes:
+        print(f"note: {note}", file=sys.stderr)
     print(summary_line(result))
     _prune_cache(opts)
     return int(result.exit_code)
@@ -153,9 +164,166 @@ def summary_line(result) -> str:
     return f"{result.pdf}  [{verdict}; {result.review_state}]\n{result.results}"
 
 
-def error_text(exc: BaseException) -> str:
-    if isinstance(exc, JobError):
-        return "\n".join(str(p).lstrip(": ") for p in exc.problems)
-    if isinstance(exc, (PluginError, ReportgenError)):
-        return str(exc)
-    return f"internal error: {type(exc).__name__}: {exc}"
+# ---------------------------------------------------------------- verify, extract, diff
+
+def _print_outcome(o: dict[str, Any], rtol: float) -> None:
+    if o.get("error"):
+        print(f"error: {o['error']}", file=sys.stderr)
+        return
+    head = f"{o['package']}: {o['label']}"
+    if not o["differences"]:
+        print(f"{head}: OK: manifest hashes match the {o['files']} embedded files; all"
+              f" {o['results']} results (relative tolerance {rtol:g}) and {o['checks']}"
+              " check statuses agree with a fresh rebuild")
+    else:
+        print(f"{head}: DIFFERS: {len(o['differences'])} differences between the embedded"
+              f" results and a fresh rebuild (relative tolerance {rtol:g})")
+        header = ("calc", "item", "embedded", "rebuilt", "")
+        rows = [header, *o["differences"]]
+        widths = [max(len(str(r[i])) for r in rows) for i in range(4)]
+        for r in rows:
+            print("  " + "  ".join(str(r[i]).ljust(widths[i]) for i in range(4))
+                  + (f"  {r[4]}" if r[4] else ""))
+    for line in o["environment"]:
+        print(f"  info: environment differs: {line}")
+
+
+def pdf_files(targets: list[Path]) -> list[Path]:
+    out: list[Path] = []
+    for t in targets:
+        if t.is_dir():
+            out.extend(sorted(p for p in t.glob("*.pdf") if p.is_file()))
+        elif t.exists():
+            out.append(t)
+        else:
+            raise JobError(Problem(str(t), "no such file or folder"))
+    return out
+
+
+def verify_command(args: Any) -> int:
+    """Verify each package (or each PDF in a folder); exit with the worst outcome."""
+    from reportgen.package.verify import verify_one
+    from reportgen.pipeline.sets import run_tasks
+
+    rtol = float(args.rtol)
+    if not (rtol >= 0 and math.isfinite(rtol)):
+        raise JobError(f"--rtol must be a finite number ≥ 0, found {args.rtol}")
+    targets = list(args.packages)
+    from reportgen.pipeline.commit import recover
+
+    for folder in dict.fromkeys(t if t.is_dir() else t.parent for t in targets):
+        for note in recover(folder):  # a commit a killed build left half done
+            print(f"note: {note}", file=sys.stderr)
+    files = pdf_files(targets)
+    folder_mode = any(t.is_dir() for t in targets)
+    if not files:
+        raise JobError(Problem(", ".join(map(str, targets)), "no *.pdf packages found"))
+    workers = args.jobs if getattr(args, "jobs", None) is not None else default_workers()
+    if workers < 1:
+        raise JobError("--jobs must be at least 1")
+    outcomes = run_tasks(verify_one, [(str(p), rtol) for p in files], workers=workers,
+                         executor=getattr(args, "executor", "local") or "local",
+                         scheduler=getattr(args, "scheduler", None))
+    counted = []
+    for o in outcomes:
+        if folder_mode and o.get("kind") == "not_package":
+            # a folder also holds the set's register and other PDFs: skip, don't fail
+            print(f"skipped: {o['package']}: not a reportgen package")
+            continue
+        _print_outcome(o, rtol)
+        counted.append(o)
+    if not counted:
+        raise JobError(Problem(", ".join(map(str, targets)),
+                               "no reportgen packages found among the PDFs"))
+    if len(outcomes) > 1:
+        ok = sum(1 for o in counted if o["exit_code"] == 0)
+        differ = sum(1 for o in counted if o["exit_code"] == 1)
+        bad = len(counted) - ok - differ
+        print(f"verified {len(counted)} packages: {ok} agree, {differ} differ,"
+              f" {bad} could not be verified")
+    return max(int(o["exit_code"]) for o in counted)
+
+
+# ---------------------------------------------------------------- extract
+
+
+def extract_command(package: Path, folder: Path) -> int:
+    """Write every embedded file of ``package`` into ``folder``, never outside it.
+
+    Names are reduced to base names; a name that is empty, absolute, contains '..' or a
+    control character, or collides with another, refuses the whole extraction (exit 2,
+    nothing written): such a file was not made by this tool.
+    """
+    from reportgen.package.archive import NotAPackage, embedded_of, open_package, safe_name
+    from reportgen.pipeline.commit import atomic_write
+
+    package = Path(package)
+    files = embedded_of(package)
+    if not files:
+        raise NotAPackage(Problem(str(package), "the PDF has no embedded files"))
+    names: dict[str, str] = {}
+    refused = []
+    for name in files:
+        base = safe_name(name)
+        if not base:
+            refused.append(f"{name!r} (unsafe name)")
+        elif base in names:
+            refused.append(f"{name!r} (same base name as {names[base]!r})")
+        else:
+            names[base] = name
+    if refused:
+        raise JobError(Problem(str(package), "refused to extract: embedded file names would"
+                               f" leave {folder} or collide: " + ", ".join(refused)
+                               + "; nothing was written"))
+    root = folder.resolve()
+    for base, name in sorted(names.items()):
+        target = root / base
+        if target.parent != root:  # belt and braces: safe_name already forbids this
+            raise JobError(Problem(str(package), f"refused to extract {name!r}"))
+        atomic_write(target, files[name])
+        print(target)
+    try:
+        open_package(package)
+    except ReportgenError as exc:
+        print(f"warning: {exc}", file=sys.stderr)
+    return int(ExitCode.OK)
+
+
+def diff_command(old: Path, new: Path) -> int:
+    """Print what changed from ``old`` to ``new``; exit 0 (2 when either is invalid)."""
+    from reportgen.package.compare import DIFF_KEYS, compare, moved_text, num, raw_text
+    from reportgen.package.revisions import load_side
+
+    plugins = load_plugins()
+    a, b = load_side(Path(old), plugins), load_side(Path(new), plugins)
+    ch = compare(a, b)
+    out = sys.stdout
+    print(f"{a.label}  →  {b.label}", file=out)
+    print(f"  old: {old}\n  new: {new}", file=out)
+    package = [row for row in ch.package if row[0] in DIFF_KEYS]
+    if package:
+        print("\nPackage", file=out)
+        for key, x, y in package:
+            print(f"  {key:<14}{raw_text(x)} → {raw_text(y)}", file=out)
+    sections = (
+        ("Calcs", [f"  added    {c}" for c in ch.calcs_added]
+         + [f"  removed  {c}" for c in ch.calcs_removed]),
+        ("Inputs and criteria (as written; SI in brackets)", [
+            f"  {kind:<8} {cid:<20} {key:<30} {raw_text(x)} → {raw_text(y)}"
+            + (f"  [{num(xs) if xs is not None else '-'} → {num(ys) if ys is not None else '-'}]"
+               if xs != ys else "")
+            for cid, key, kind, x, y, xs, ys in ch.inputs]),
+        ("Results that moved (SI)", [
+            f"  {cid:<20} {key:<30} {num(x) if x is not None else '-':>12} →"
+            f" {num(y) if y is not None else '-':>12} {unit if unit != '1' else '':<8}"
+            f" {moved_text(x, y, r)}" for cid, key, x, y, unit, r in ch.results]),
+        ("Check statuses that flipped", [
+            f"  {cid:<20} {key:<30} {x.upper()} → {y.upper()}" for cid, key, x, y in ch.checks]),
+    )
+    for title, rows in sections:
+        print(f"\n{title}", file=out)
+        print("\n".join(rows) if rows else "  none", file=out)
+    if a.si_inputs is None or b.si_inputs is None:
+        print("\nnote: SI input values are unavailable for a package whose calc types are not"
+              " installed here; raw job values are compared", file=out)
+    return int(ExitCode.OK)

@@ -45,9 +45,9 @@ def validate_name(name: str) -> str:
 
 
 def _installed_calc_types() -> set[str]:
-    from reportgen.calc.plugin_set import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
 
-    return set(get_plugin_manager().calcs)
+    return set(load_plugin_set().calcs)
 
 
 def _class_name(name: str) -> str:
@@ -55,7 +55,7 @@ def _class_name(name: str) -> str:
 
 
 def _requirement() -> str:
-    from reportgen import __version__
+    from reportgen._version import __version__
 
     m = re.match(r"(\d+)\.(\d+)", __version__)
     if not m or __version__.startswith("0.0.0"):

@@ -5,20 +5,22 @@ This module runs plugins and assembles the document tree; it never renders.
 
 from __future__ import annotations
 
-import dataclasses
 import math
 import platform
 from collections.abc import Callable, Mapping
+from dataclasses import dataclass
 from typing import Any
 
-from reportgen import __version__
+from reportgen._version import __version__
 from reportgen.calc.plugin_set import PluginSet, RegisteredCalc
-from reportgen.calc.sheet import CalcContext, CalcOutput, InputSpec
+from reportgen.calc.sheet import CalcContext, CalcOutput
+from reportgen.calc.spec import InputSpec
 from reportgen.document.transforms import apply_transforms
 from reportgen.errors import PluginError, ReportgenError, VerificationError
 from reportgen.job.load import CalcSpec, Job
 from reportgen.model import (
     BLOCK_TYPES,
+    Block,
     Check,
     Document,
     Equation,
@@ -28,6 +30,7 @@ from reportgen.model import (
     Quantity,
     ResultRow,
     Section,
+    Table,
     VerificationRow,
 )
 from reportgen.units import DIMENSIONS
@@ -35,16 +38,33 @@ from reportgen.units import DIMENSIONS
 VerifyHook = Callable[[RegisteredCalc, CalcContext, CalcOutput], Any]
 
 
-def compute_document(job: Job, plugins: PluginSet, *,
-                     verify: VerifyHook | None = None) -> Document:
-    """Run every calc of ``job`` and return the transformed document.
+@dataclass(frozen=True, kw_only=True)
+class Computed:
+    """One calc computed (its output checked), waiting for its verification rows."""
 
-    ``verify`` replaces the direct call of ``calc_type.verify`` (the cache uses it).
-    Raises PluginError when a plugin raises or returns malformed output, and
-    VerificationError when an independent check disagrees.
+    spec: CalcSpec
+    reg: RegisteredCalc
+    ctx: CalcContext
+    output: CalcOutput
+
+
+def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None = None,
+                     on_computed: Callable[[Computed], None] | None = None) -> Document:
+    """Run every calc of ``job`` once and return the transformed document.
+
+    Every calc is computed first, ``on_computed`` hearing of each as it is done (a
+    scheduler starts its verification and its drawings then); then each calc's rows come
+    from ``verify`` (a cache, or a scheduler collecting what it started), or from the
+    calc type's own ``verify``. Raises PluginError when a plugin raises or returns
+    malformed output, and VerificationError when an independent check disagrees.
     """
-    sections = [compute_section(spec, plugins.calcs[spec.plugin], job.info.units, verify)
-                for spec in job.calcs]
+    computed = []
+    for spec in job.calcs:
+        c = compute_calc(spec, plugins.calcs[spec.plugin], job.info.units)
+        if on_computed is not None:
+            on_computed(c)
+        computed.append(c)
+    sections = [finish_section(c, verify) for c in computed]
     software = [("reportgen", "reportgen", __version__),
                 ("Python", platform.python_implementation(), platform.python_version())]
     seen = set()
@@ -62,46 +82,60 @@ def compute_document(job: Job, plugins: PluginSet, *,
 def calc_context(spec: CalcSpec, units: str) -> CalcContext:
     return CalcContext(calc_id=spec.id, title=spec.title, inputs=dict(spec.inputs),
                        given=spec.given, criteria=dict(spec.criteria),
-                       criteria_given=spec.criteria_given, units=units)
+                       criteria_given=spec.criteria_given, units=units,
+                       files=dict(spec.files))
 
 
-def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
-                    verify: VerifyHook | None = None) -> Section:
-    ct = reg.calc_type
-    ctx = calc_context(spec, units)
-
+def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
+             cause: BaseException | None = None) -> PluginError:
     # name the plugin as installed (its entry point), and the calc type when it differs
-    about = "" if reg.plugin == reg.name else f"calc type '{reg.name}': "
+    about = "" if c_reg.plugin == c_reg.name else f"calc type '{c_reg.name}': "
+    err = PluginError(about + message, plugin=c_reg.plugin, package=c_reg.package,
+                      calc=calc_id, stage=stage)
+    err.__cause__ = cause
+    return err
 
-    def fail(message: str, stage: str, cause: BaseException | None = None) -> PluginError:
-        err = PluginError(about + message, plugin=reg.plugin, package=reg.package,
-                          calc=spec.id, stage=stage)
-        err.__cause__ = cause
-        return err
 
+def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
+    """Call the calc's compute once, wrapped so a failure names its plugin; check the
+    output is well formed."""
+    ctx = calc_context(spec, units)
     try:
-        out = ct.compute(ctx)
+        out = reg.calc_type.compute(ctx)
     except ReportgenError:
         raise
     except Exception as exc:
-        raise fail(f"compute raised {type(exc).__name__}: {exc}", "compute", exc) from exc
+        raise _failure(reg, spec.id, f"compute raised {type(exc).__name__}: {exc}", "compute",
+                       exc) from exc
     problem = check_output(out)
     if problem:
-        raise fail(f"compute returned malformed output: {problem}", "compute")
+        raise _failure(reg, spec.id, f"compute returned malformed output: {problem}",
+                       "compute")
+    return Computed(spec=spec, reg=reg, ctx=ctx, output=out)
+
+
+def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
+    """The calc's section: its verification rows (which must agree), its inputs tables
+    and the blocks it computed."""
+    spec, reg, ctx, out = c.spec, c.reg, c.ctx, c.output
+    ct = reg.calc_type
     try:
         rows = verify(reg, ctx, out) if verify else ct.verify(ctx, out)
     except ReportgenError:
         raise
     except Exception as exc:
-        raise fail(f"verify raised {type(exc).__name__}: {exc}", "verify", exc) from exc
+        raise _failure(reg, spec.id, f"verify raised {type(exc).__name__}: {exc}", "verify",
+                       exc) from exc
     verification: tuple[VerificationRow, ...] | None = None
     if rows is not None:
         rows = tuple(rows)
         bad = [r for r in rows if not isinstance(r, VerificationRow)]
         if bad:
-            raise fail(f"verify returned {type(bad[0]).__name__}, not VerificationRow", "verify")
+            raise _failure(reg, spec.id, f"verify returned {type(bad[0]).__name__}, not"
+                           " VerificationRow", "verify")
         disagree = [r for r in rows if not r.agrees]
         if disagree:
+            about = "" if reg.plugin == reg.name else f"calc type '{reg.name}': "
             text = "; ".join(
                 f"{r.quantity}: closed form {r.closed_form:.6g}, independent {r.independent:.6g}"
                 f" (relative difference {r.rel_difference:.2e} > tolerance {r.tolerance:.1e})"
@@ -113,18 +147,42 @@ def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
         verification = rows
     inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
                                                 spec.raw_inputs))
-    blocks: tuple[InputsTable, ...] = (inputs_block,)
+    blocks: tuple[Block, ...] = (inputs_block, *_input_tables(ct.inputs, spec.inputs))
     if spec.criteria or ct.criteria:
         crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given,
                                 spec.raw_criteria)
         if crit_rows:
             blocks += (InputsTable(rows=crit_rows, title="Design criteria"),)
+        blocks += _input_tables(ct.criteria, spec.criteria)
     return Section(
         calc_id=spec.id, plugin=reg.name, plugin_version=ct.version,
         plugin_package=reg.package, title=spec.title, purpose=out.purpose or ct.purpose,
         blocks=blocks + tuple(out.blocks), results=tuple(out.results),
         checks=tuple(out.checks), verification=verification, notes=spec.notes,
         sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
+
+
+def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
+                    verify: VerifyHook | None = None) -> Section:
+    """One calc, computed and verified (the test kit's way to look at a section alone)."""
+    return finish_section(compute_calc(spec, reg, units), verify)
+
+
+def _input_tables(specs: tuple[InputSpec, ...], values: Mapping[str, Any]
+                  ) -> tuple[Table, ...]:
+    """A table input is shown as a table of its own, one row per row given, each cell in
+    its column's display unit."""
+    out = []
+    for sp in specs:
+        if sp.kind != "table" or sp.name not in values:
+            continue
+        cols = sp.columns
+        out.append(Table(
+            title=sp.description, header=("#", *(c.description for c in cols)),
+            units=("", *("" if c.kind == "text" else c.dimension for c in cols)),
+            rows=tuple((str(i), *(row.get(c.name) for c in cols))
+                       for i, row in enumerate(values[sp.name], start=1))))
+    return tuple(out)
 
 
 def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
@@ -138,6 +196,15 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
         source = (f"job file: {written}" if isinstance(written, (str, int, float))
                   and not isinstance(written, bool) else "job file") if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
+        if sp.kind == "table":
+            continue  # a table of its own (_input_tables)
+        if sp.kind in ("choice", "text", "file"):
+            text = (f"{value.name} ({value.size} bytes, SHA-256 {value.sha256[:12]}…)"
+                    if sp.kind == "file" else str(value))
+            rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
+                                 quantity=None, text=text,
+                                 source="job file" if sp.name in given else source))
+            continue
         if sp.kind in ("pair", "points"):
             flat = [v for v in _flatten(value)]
             for i, v in enumerate(flat):
@@ -224,7 +291,3 @@ def _equation_problem(eq: Equation) -> str:
         return (f"equation {eq.name} = {eq.expression}: its operands give {again:.6g}, but"
                 f" the block states {eq.result.value:.6g}")
     return ""
-
-
-def with_changes(doc: Document, changes: tuple[str, ...]) -> Document:
-    return dataclasses.replace(doc, changes=changes)

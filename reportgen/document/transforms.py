@@ -18,6 +18,14 @@ def number_sections(doc: Document) -> Document:
     return dataclasses.replace(doc, sections=sections)
 
 
+def with_changes(doc: Document, changes: tuple[str, ...], previous_revision: str) -> Document:
+    """The "Changes since revision X" section: its lines and the previous revision's
+    label (``doc.extra['previous_revision']``, for its title)."""
+    extra = tuple(kv for kv in doc.extra if kv[0] != "previous_revision")
+    return dataclasses.replace(doc, changes=changes,
+                               extra=extra + (("previous_revision", previous_revision),))
+
+
 #: The transforms, in the order they run.
 TRANSFORMS: tuple[Callable[[Document], Document], ...] = (number_sections,)
 

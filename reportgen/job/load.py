@@ -6,6 +6,7 @@ Every problem found is collected (not only the first) and raised together as a
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as _dt
 import difflib
 import math
@@ -14,11 +15,11 @@ import stat
 import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from pathlib import Path
+from pathlib import Path, PurePosixPath
 from typing import Any
 
 from reportgen.calc.plugin_set import PluginSet
-from reportgen.calc.sheet import InputSpec
+from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
 from reportgen.model import PackageInfo, RevisionEntry
@@ -34,6 +35,9 @@ MAX_DEPTH = 32
 MAX_ATTACHMENTS = 20
 MAX_ATTACHMENT_BYTES = 10_000_000
 MAX_ATTACHMENTS_TOTAL = 25_000_000
+#: everything a package embeds from the job's folder (attachments and data files): below
+#: what ``verify`` reads back (128 MiB in all, reportgen.package.archive)
+MAX_EMBEDDED_TOTAL = 100_000_000
 #: embedded names the package itself uses; an attachment may not take one of them
 RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json", "environment.lock"})
 #: The shapes of ids, file-naming fields and dates: the validator and the JSON Schema
@@ -80,6 +84,8 @@ class CalcSpec:
     criteria_given: frozenset[str]
     raw_inputs: Mapping[str, Any]
     raw_criteria: Mapping[str, Any]
+    #: the data files its "file" inputs name, by input name (read once, at load time)
+    files: Mapping[str, DataFile] = field(default_factory=dict)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -229,7 +235,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     data_bytes = read_job_bytes(path) if source is None else source
     raw = parse_job_toml(fname, data_bytes)
     problems: list[Problem] = []
-    v = _Validator(fname, problems, archived=archived)
+    v = _Validator(fname, problems, archived=archived, folder=path.parent)
     for key in raw:
         if key not in ("package", "calc"):
             v.add(f"unknown top-level table '{key}'{_nearest(key, ['package', 'calc'])};"
@@ -257,12 +263,28 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         spec = v.calc(c, index, plugins, seen)
         if spec is not None:
             calcs.append(spec)
+    attachments = v.with_data_files(attachments, calcs)
     if problems:
         raise JobError(problems)
     assert info is not None
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
                calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
                raw=raw, attachments=attachments)
+
+
+def job_files(targets: list[Path]) -> list[Path]:
+    """The job files named: each file as given, each folder's ``*.toml`` in name order."""
+    out: list[Path] = []
+    for t in targets:
+        if t.is_dir():
+            out.extend(sorted(p for p in t.glob("*.toml") if p.is_file()))
+        elif t.exists():
+            out.append(t)
+        else:
+            raise JobError(Problem(str(t), "no such file or folder"))
+    if not out:
+        raise JobError(Problem(", ".join(map(str, targets)), "no *.toml job files found"))
+    return out
 
 
 def _too_deep(raw: Mapping[str, Any]) -> tuple[str, str] | None:
@@ -377,10 +399,13 @@ def _duplicate_key_line(lines: list[str]) -> int:
 
 
 class _Validator:
-    def __init__(self, fname: str, problems: list[Problem], archived: bool = False):
+    def __init__(self, fname: str, problems: list[Problem], archived: bool = False,
+                 folder: Path | None = None):
         self.fname = fname
         self.problems = problems
         self.archived = archived
+        self.folder = folder
+        self._files: dict[str, DataFile] = {}  # the calc being read's data files
 
     def add(self, message: str, *, calc: str = "", field: str = "") -> None:
         self.problems.append(Problem(self.fname, message, calc, field))
@@ -620,6 +645,7 @@ class _Validator:
         if reg is None:
             return None
         ct = reg.calc_type
+        self._files = {}
         inputs, given = self._values(inputs_raw, ct.inputs, label, "inputs")
         criteria, cgiven = self._values(criteria_raw, ct.criteria, label, "criteria")
         if len(self.problems) == before:
@@ -638,7 +664,8 @@ class _Validator:
         assert isinstance(cid, str) and isinstance(plugin, str)  # no problems were added
         return CalcSpec(id=cid, plugin=plugin, title=title, notes=notes, inputs=inputs,
                         given=given, criteria=criteria, criteria_given=cgiven,
-                        raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw))
+                        raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw),
+                        files=dict(self._files))
 
     def _values(self, raw: Mapping[str, Any], specs: tuple[InputSpec, ...], calc: str,
                 table: str) -> tuple[dict[str, Any], frozenset[str]]:
@@ -666,7 +693,13 @@ class _Validator:
         return out, frozenset(k for k in raw if k in by_name)
 
     def _one(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> Any:
+        if spec.kind == "table":
+            return self._table(raw, spec, calc, fld)
+        if spec.kind == "file":
+            return self._file(raw, spec, calc, fld)
         try:
+            if spec.kind in ("choice", "text"):
+                return _text_value(raw, spec)
             if spec.kind == "integer":
                 if isinstance(raw, bool) or not isinstance(raw, int):
                     raise UnitProblem(f"expected a whole number, found {raw!r}")
@@ -700,8 +733,102 @@ class _Validator:
             self.add(str(exc), calc=calc, field=fld)
             return None
 
+    def _table(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> Any:
+        """An array of tables, one per row, each cell read as its column declares; every
+        problem names the row (from 1) and the column."""
+        if not isinstance(raw, list) or not all(isinstance(r, dict) for r in raw):
+            self.add(f"expected an array of tables, one per row ([[calc.inputs.{spec.name}]]"
+                     f" with {', '.join(c.name for c in spec.columns)})", calc=calc, field=fld)
+            return None
+        if not spec.min_rows <= len(raw) <= spec.max_rows:
+            self.add(f"{len(raw)} rows; give from {spec.min_rows} to {spec.max_rows}",
+                     calc=calc, field=fld)
+            return None
+        by_name = {c.name: c for c in spec.columns}
+        rows: list[dict[str, Any]] = []
+        before = len(self.problems)
+        for i, row in enumerate(raw, start=1):
+            where = f"{fld}[{i}]"
+            for key in row:
+                if key not in by_name:
+                    self.add(f"row {i}: unknown column '{key}'{_nearest(key, list(by_name))};"
+                             f" the columns are {', '.join(by_name)}", calc=calc,
+                             field=f"{where}.{key}")
+            out: dict[str, Any] = {}
+            for col in spec.columns:
+                cell = f"{where}.{col.name}"
+                if col.name not in row:
+                    if col.required:
+                        self.add(f"row {i}: column '{col.name}' ({col.description}) is"
+                                 " missing", calc=calc, field=cell)
+                    continue
+                try:
+                    out[col.name] = _cell_value(row[col.name], col)
+                except UnitProblem as exc:
+                    self.add(f"row {i}, column '{col.name}': {exc}", calc=calc, field=cell)
+            rows.append(out)
+        return tuple(rows) if len(self.problems) == before else None
+
+    def _file(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> DataFile | None:
+        """A data file in the job's folder by the one safe-path rule, read once."""
+        if not isinstance(raw, str) or not raw.strip():
+            self.add("expected the path of a file in the job's folder, such as"
+                     f" \"{'survey' + (spec.formats[0] if spec.formats else '.csv')}\"",
+                     calc=calc, field=fld)
+            return None
+        suffix = PurePosixPath(raw).suffix.lower()
+        if spec.formats and suffix not in spec.formats:
+            self.add(f"{raw!r} is not one of the file types this input reads"
+                     f" ({', '.join(spec.formats)})", calc=calc, field=fld)
+            return None
+        assert self.folder is not None
+        try:
+            data = read_job_file(self.folder, raw, fld, limit=spec.max_bytes,
+                                 file=self.fname, what="data file")
+        except JobError as exc:
+            self.problems.extend(dataclasses.replace(p, calc=calc) for p in exc.problems)
+            return None
+        found = DataFile.of("/".join(path_parts(raw)), data)
+        self._files[spec.name] = found
+        return found
+
+    def with_data_files(self, attachments: tuple[JobAttachment, ...],
+                        calcs: list[CalcSpec]) -> tuple[JobAttachment, ...]:
+        """The attachments, and every data file the calcs name (once each), embedded like
+        them: the package carries what its calcs read."""
+        out = list(attachments)
+        by_path = {a.path: a for a in out}
+        names = {a.name: a.path for a in out}
+        total = sum(len(a.data) for a in out)
+        for c in calcs:
+            for input_name, f in c.files.items():
+                if f.name in by_path:
+                    if by_path[f.name].data != f.data:
+                        self.add(f"{f.name!r} changed while the job was read", calc=c.id,
+                                 field=f"inputs.{input_name}")
+                    continue
+                base = f.name.rsplit("/", 1)[-1]
+                if base in RESERVED_NAMES or base in names:
+                    other = ("the package's own file" if base in RESERVED_NAMES
+                             else repr(names[base]))
+                    self.add(f"{f.name!r} would be embedded as '{base}', which {other}"
+                             " already uses; rename the file", calc=c.id,
+                             field=f"inputs.{input_name}")
+                    continue
+                total += f.size
+                if total > MAX_EMBEDDED_TOTAL:
+                    self.add(f"the data files and attachments total more than"
+                             f" {MAX_EMBEDDED_TOTAL} bytes, the most a package embeds",
+                             calc=c.id, field=f"inputs.{input_name}")
+                    return tuple(out)
+                a = JobAttachment(path=f.name, name=base, data=f.data)
+                out.append(a)
+                by_path[f.name] = a
+                names[base] = f.name
+        return tuple(out)
+
     @staticmethod
-    def _range(value: float, spec: InputSpec) -> None:
+    def _range(value: float, spec: InputSpec | Column) -> None:
         if math.isnan(value) or math.isinf(value):
             raise UnitProblem(f"expected a finite value, found {value}")
         unit = DIMENSIONS[spec.dimension].si_label
@@ -720,6 +847,43 @@ def empty_date_allowed() -> bool:
     problems: list[Problem] = []
     _Validator("", problems)._date({"d": ""}, "d", "")
     return not problems
+
+
+def _text_value(raw: Any, spec: InputSpec) -> str:
+    if not isinstance(raw, str):
+        raise UnitProblem(f"expected text, found {type(raw).__name__} {_short(raw)}"
+                          + (f"; one of {', '.join(spec.choices)}" if spec.choices else ""))
+    problem = text_problem(raw, spec.name)
+    if problem:
+        raise UnitProblem(str(problem))
+    if spec.kind == "choice":
+        if raw not in spec.choices:
+            raise UnitProblem(f"{raw!r} is not one of {', '.join(spec.choices)}"
+                              f"{_nearest(raw, list(spec.choices))}")
+    elif len(raw) > spec.max_length:
+        raise UnitProblem(f"text longer than {spec.max_length} characters")
+    return raw
+
+
+def _cell_value(raw: Any, col: Column) -> Any:
+    """One table cell, read as its column declares (raises UnitProblem)."""
+    if col.kind == "text":
+        if not isinstance(raw, str):
+            raise UnitProblem(f"expected text, found {type(raw).__name__} {_short(raw)}")
+        problem = text_problem(raw, col.name)
+        if problem:
+            raise UnitProblem(str(problem))
+        return raw
+    if col.kind == "integer":
+        if isinstance(raw, bool) or not isinstance(raw, int):
+            raise UnitProblem(f"expected a whole number, found {raw!r}")
+        _Validator._range(float(raw), col)
+        return int(raw)
+    if isinstance(raw, str) and text_problem(raw, "quantity"):
+        raise UnitProblem(str(text_problem(raw, "quantity")))
+    value = parse_quantity(raw, col.dimension)
+    _Validator._range(value, col)
+    return value
 
 
 def _example(spec: InputSpec, n: int = 1) -> str:

@@ -11,7 +11,7 @@ import re
 from typing import Any
 
 from reportgen.calc.plugin_set import PluginSet
-from reportgen.calc.sheet import InputSpec
+from reportgen.calc.spec import InputSpec
 from reportgen.job.load import (
     CALC_KEYS,
     DATE_PATTERN,

@@ -79,7 +79,7 @@ def environment_lock() -> bytes:
     anything installed from a local folder are comment lines: pip must not ask a package
     index for an in-house name; they are installed from their own source or wheel.
     """
-    from reportgen import __version__
+    from reportgen._version import __version__
 
     cwd = os.getcwd()
     path = [p for p in sys.path if p and os.path.abspath(p) != cwd]
@@ -111,7 +111,7 @@ def environment_lock() -> bytes:
 
 
 def manifest_data(doc: Document, job: Job, results: bytes) -> dict[str, Any]:
-    from reportgen import __version__
+    from reportgen._version import __version__
 
     plugins = {}
     for s in doc.sections:
@@ -162,37 +162,6 @@ def embedded_files(job: Job, results: bytes, manifest: bytes) -> list[EmbeddedFi
             mime=mimetypes.guess_type(a.name, strict=False)[0] or "application/octet-stream",
             description=f"File {a.path} from the job folder, listed in [package] attachments"))
     return sorted(files, key=lambda f: f.name)
-
-
-def changes_since(doc: Document, job: Job) -> Document:
-    """Add a "Changes since revision X" section from the previous package's embedded files.
-
-    The previous revision's name goes into ``doc.extra`` as ``previous_revision`` for the
-    section title; the lines compare its embedded job and results with this build.
-    """
-    from reportgen.document.compute import with_changes
-    from reportgen.document.results import results_data
-    from reportgen.package.compare import describe_changes, read_package_files
-
-    assert job.previous_package is not None
-    try:
-        previous = read_package_files(job.previous_package)
-    except JobError as exc:
-        raise JobError([Problem(str(job.path), f"previous package {pr.file}: {pr.message}",
-                                field="package.previous_package")
-                        for pr in exc.problems]) from None
-    lines = describe_changes(previous.results, results_data(doc),
-                             previous_job=previous.job_raw, new_job=dict(job.raw))
-    prev_pkg = previous.results.get("package", {})
-    if prev_pkg.get("calc_number") != job.info.calc_number:
-        lines.insert(0, f"The previous package is calc {prev_pkg.get('calc_number', '?')},"
-                        f" not {job.info.calc_number}: check [package] previous_package.")
-    label = str(prev_pkg.get("revision", "")) or "?"
-    if prev_pkg.get("date"):
-        label += f" ({prev_pkg['date']})"
-    doc = with_changes(doc, tuple(lines) or ("No inputs, results or check statuses changed.",))
-    extra = tuple(kv for kv in doc.extra if kv[0] != "previous_revision")
-    return dataclasses.replace(doc, extra=extra + (("previous_revision", label),))
 
 
 # ---------------------------------------------------------------- reading a package back
@@ -341,24 +310,10 @@ def embedded_of(path: Path) -> dict[str, bytes]:
                                   f" {exc}")) from None
 
 
-def page_attachments(pdf: Any) -> list[str]:
-    """Files attached to pages of an open ``pikepdf.Pdf`` (annotations), as "NAME (page N)".
-
-    They are embedded files too, outside the document's list of attachments; a package
-    of this tool has none.
-    """
-    found = []
-    for number, page in enumerate(pdf.pages, start=1):
-        for annot in page.obj.get("/Annots", ()):
-            if annot.get("/Subtype") == "/FileAttachment":
-                spec = annot.get("/FS", {})
-                name = spec.get("/UF", spec.get("/F", "?")) if hasattr(spec, "get") else "?"
-                found.append(f"{name} (page {number})")
-    return found
-
-
 def _page_attachments_of(path: Path) -> list[str]:
     import pikepdf
+
+    from reportgen.render.selfcheck import page_attachments
 
     with pikepdf.open(path) as pdf:
         return page_attachments(pdf)

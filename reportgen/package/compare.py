@@ -1,23 +1,25 @@
-"""Compare two revisions (packages or job files): inputs, results and check statuses.
+"""The one comparer of two revisions of a package (or a package and its rebuild): the
+package's facts, calcs added or removed, inputs as written (and in SI), results, check
+statuses, values and limits, and the independent verification's agreement.
 
-Also reads a previous package's embedded results for the "Changes since revision X" section.
+``reportgen diff``, the "Changes since revision X" section and ``reportgen verify`` all
+read the same :class:`Changes`; each shows the part it needs. Pure data in, data out.
 """
 
 from __future__ import annotations
 
 import json
 import math
-import sys
-import tempfile
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Any
-
-from reportgen.errors import ExitCode, JobError, Problem
-from reportgen.package.archive import Package, open_package
 
 #: results closer than this (relative) have not moved: float noise is not a change
 MOVE_RTOL = 1e-9
+#: the package facts compared (diff shows the first nine, verify the last four)
+PACKAGE_KEYS = ("title", "calc_number", "revision", "date", "prepared_by", "checked_by",
+                "approved_by", "review_state", "status", "checks_total", "checks_failed")
+DIFF_KEYS = PACKAGE_KEYS[:9]
+VERIFY_KEYS = ("status", "review_state", "checks_total", "checks_failed")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -35,77 +37,22 @@ class Changes:
     package: list[tuple[str, Any, Any]] = field(default_factory=list)
     calcs_added: list[str] = field(default_factory=list)
     calcs_removed: list[str] = field(default_factory=list)
+    #: the calcs both sides have, in order
+    common: list[str] = field(default_factory=list)
     # (calc id, "inputs.mass", kind added|removed|changed, old raw, new raw, old SI, new SI)
     inputs: list[tuple[str, str, str, Any, Any, Any, Any]] = field(default_factory=list)
     # (calc id, key, old value, new value, unit, relative change or None)
     results: list[tuple[str, str, float | None, float | None, str, float | None]] = field(
         default_factory=list)
+    # (calc id, key, old unit, new unit)
+    units: list[tuple[str, str, Any, Any]] = field(default_factory=list)
     # (calc id, check id, old status, new status)
     checks: list[tuple[str, str, str, str]] = field(default_factory=list)
+    # (calc id, check id, "value"|"limit", old, new)
+    check_values: list[tuple[str, str, str, Any, Any]] = field(default_factory=list)
+    # (calc id, old agreement flags, new agreement flags)
+    verification: list[tuple[str, list, list]] = field(default_factory=list)
 
-
-# ---------------------------------------------------------------- reading
-
-def read_package(path: Path | str) -> dict[str, Any]:
-    """The embedded results.json of a package (its hashes checked against the manifest)."""
-    return open_package(path).results
-
-
-def read_package_files(path: Path | str) -> Package:
-    """Every embedded file of a package, hash-checked (see :func:`archive.open_package`)."""
-    return open_package(path)
-
-
-def _is_pdf(path: Path) -> bool:
-    try:
-        with path.open("rb") as fh:
-            return fh.read(5) == b"%PDF-"
-    except OSError:
-        raise JobError(Problem(str(path), "no such file, or it cannot be read")) from None
-
-
-def load_side(path: Path, plugins: Any) -> Side:
-    """A package (its embedded job and results) or a job file (computed, not rendered)."""
-    from reportgen.document.compute import compute_document
-    from reportgen.document.results import results_data
-    from reportgen.job.load import load_job
-
-    if _is_pdf(path):
-        pkg = open_package(path)
-        si = None
-        with tempfile.TemporaryDirectory(prefix="reportgen-diff-") as tmp:
-            from reportgen.package.archive import load_embedded_job
-
-            try:
-                job = load_embedded_job(pkg, plugins, Path(tmp))
-                si = _si_inputs(job)
-            except JobError:
-                si = None  # e.g. a plugin no longer installed: compare raw values only
-        return Side(label=_label(pkg.results, path), job_raw=pkg.job_raw,
-                    results=pkg.results, si_inputs=si)
-    job = load_job(path, plugins)
-    results = results_data(compute_document(job, plugins))
-    return Side(label=_label(results, path), job_raw=dict(job.raw), results=results,
-                si_inputs=_si_inputs(job))
-
-
-def _si_inputs(job: Any) -> dict[str, dict[str, Any]]:
-    out: dict[str, dict[str, Any]] = {}
-    for c in job.calcs:
-        values = {f"inputs.{k}": v for k, v in c.inputs.items()}
-        values.update({f"criteria.{k}": v for k, v in c.criteria.items()})
-        out[c.id] = values
-    return out
-
-
-def _label(results: dict[str, Any], path: Path) -> str:
-    pkg = results.get("package", {})
-    rev = pkg.get("revision", "?")
-    date = f" ({pkg['date']})" if pkg.get("date") else ""
-    return f"{pkg.get('calc_number', path.name)} revision {rev}{date}"
-
-
-# ---------------------------------------------------------------- comparing
 
 def _calcs(job_raw: dict[str, Any]) -> dict[str, dict[str, Any]]:
     calcs = job_raw.get("calc", [])
@@ -125,11 +72,23 @@ def relative_change(old: float, new: float) -> float | None:
     return (new - old) / abs(old)
 
 
+def _close(a: Any, b: Any, rtol: float) -> bool:
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(
+            a, bool) and not isinstance(b, bool):
+        return math.isclose(a, b, rel_tol=rtol, abs_tol=0.0)
+    return a == b
+
+
+def _qv(q: Any) -> Any:
+    return q.get("value") if isinstance(q, dict) else q
+
+
 def compare(old: Side, new: Side, rtol: float = MOVE_RTOL) -> Changes:
+    """Everything that differs between ``old`` and ``new`` (numbers within ``rtol``
+    relative count as equal)."""
     ch = Changes()
     old_pkg, new_pkg = old.results.get("package", {}), new.results.get("package", {})
-    for key in ("title", "calc_number", "revision", "date", "prepared_by", "checked_by",
-                "approved_by", "review_state", "status"):
+    for key in PACKAGE_KEYS:
         if old_pkg.get(key) != new_pkg.get(key):
             ch.package.append((key, old_pkg.get(key), new_pkg.get(key)))
     old_jc, new_jc = _calcs(old.job_raw), _calcs(new.job_raw)
@@ -138,27 +97,50 @@ def compare(old: Side, new: Side, rtol: float = MOVE_RTOL) -> Changes:
     ids_new = list(dict.fromkeys([*new_jc, *new_rc]))
     ch.calcs_removed = [c for c in ids_old if c not in ids_new]
     ch.calcs_added = [c for c in ids_new if c not in ids_old]
+    ch.common = [c for c in ids_old if c in ids_new]
     for cid in (c for c in ids_new if c in ids_old):
         _compare_inputs(ch, cid, old, new, old_jc.get(cid, {}), new_jc.get(cid, {}))
         oc, nc = old_rc.get(cid, {}), new_rc.get(cid, {})
-        o_res, n_res = oc.get("results", {}), nc.get("results", {})
-        for key in dict.fromkeys([*o_res, *n_res]):
-            a, b = o_res.get(key), n_res.get(key)
-            unit = (b or a or {}).get("unit", "")
-            va = a.get("value") if a else None
-            vb = b.get("value") if b else None
-            if va is None or vb is None:
-                if va != vb:
-                    ch.results.append((cid, key, va, vb, unit, None))
-            elif not math.isclose(va, vb, rel_tol=rtol, abs_tol=0.0):
-                ch.results.append((cid, key, va, vb, unit, relative_change(va, vb)))
-        o_chk = {c.get("id"): c.get("status") for c in oc.get("checks", [])}
-        n_chk = {c.get("id"): c.get("status") for c in nc.get("checks", [])}
-        for key in dict.fromkeys([*o_chk, *n_chk]):
-            if o_chk.get(key) != n_chk.get(key):
-                ch.checks.append((cid, key, o_chk.get(key) or "absent",
-                                  n_chk.get(key) or "absent"))
+        _compare_results(ch, cid, oc.get("results", {}), nc.get("results", {}), rtol)
+        _compare_checks(ch, cid, oc.get("checks", []), nc.get("checks", []), rtol)
+        o_ver = [v.get("agrees") for v in oc.get("verification") or []]
+        n_ver = [v.get("agrees") for v in nc.get("verification") or []]
+        if o_ver != n_ver:
+            ch.verification.append((cid, o_ver, n_ver))
     return ch
+
+
+def _compare_results(ch: Changes, cid: str, o_res: dict, n_res: dict, rtol: float) -> None:
+    for key in dict.fromkeys([*o_res, *n_res]):
+        a, b = o_res.get(key), n_res.get(key)
+        unit = (b or a or {}).get("unit", "")
+        va = a.get("value") if a else None
+        vb = b.get("value") if b else None
+        if a and b and a.get("unit") != b.get("unit"):
+            ch.units.append((cid, key, a.get("unit"), b.get("unit")))
+        if va is None or vb is None:
+            if va != vb:
+                ch.results.append((cid, key, va, vb, unit, None))
+        elif not _close(va, vb, rtol):
+            ch.results.append((cid, key, va, vb, unit, relative_change(va, vb)
+                               if isinstance(va, (int, float)) and isinstance(vb, (int, float))
+                               else None))
+
+
+def _compare_checks(ch: Changes, cid: str, o_list: list, n_list: list, rtol: float) -> None:
+    o_chk = {c.get("id"): c for c in o_list}
+    n_chk = {c.get("id"): c for c in n_list}
+    for key in dict.fromkeys([*o_chk, *n_chk]):
+        a, b = o_chk.get(key), n_chk.get(key)
+        if (a and a.get("status")) != (b and b.get("status")):
+            ch.checks.append((cid, key, (a or {}).get("status") or "absent",
+                              (b or {}).get("status") or "absent"))
+        if a is None or b is None:
+            continue
+        for part in ("value", "limit"):
+            va, vb = _qv(a.get(part)), _qv(b.get(part))
+            if not _close(va, vb, rtol):
+                ch.check_values.append((cid, key, part, va, vb))
 
 
 def _compare_inputs(ch: Changes, cid: str, old: Side, new: Side, oc: dict[str, Any],
@@ -190,15 +172,15 @@ def _compare_inputs(ch: Changes, cid: str, old: Side, new: Side, oc: dict[str, A
 
 # ---------------------------------------------------------------- describing
 
-def _num(v: Any) -> str:
+def num(v: Any) -> str:
     if isinstance(v, float):
         return f"{v:.6g}"
     if isinstance(v, (tuple, list)):
-        return "[" + ", ".join(_num(x) for x in v) + "]"
+        return "[" + ", ".join(num(x) for x in v) + "]"
     return str(v)
 
 
-def _raw(v: Any) -> str:
+def raw_text(v: Any) -> str:
     if v is None:
         return "(not given)"
     try:
@@ -207,14 +189,14 @@ def _raw(v: Any) -> str:
         return repr(v)
 
 
-def _rel(r: float | None) -> str:
+def rel_text(r: float | None) -> str:
     return "from zero" if r is None else f"{r * 100:+.3g} %"
 
 
-def _moved(x: float | None, y: float | None, r: float | None) -> str:
+def moved_text(x: float | None, y: float | None, r: float | None) -> str:
     if x is None or y is None:
         return "added" if x is None else "removed"
-    return _rel(r)
+    return rel_text(r)
 
 
 def change_lines(ch: Changes, *, si: bool = True) -> list[str]:
@@ -224,22 +206,22 @@ def change_lines(ch: Changes, *, si: bool = True) -> list[str]:
     for cid, key, kind, a, b, a_si, b_si in ch.inputs:
         si_text = ""
         if si and (a_si is not None or b_si is not None) and (a_si != b_si):
-            si_text = f" (SI {_num(a_si) if a_si is not None else '-'} → " \
-                      f"{_num(b_si) if b_si is not None else '-'})"
+            si_text = f" (SI {num(a_si) if a_si is not None else '-'} → " \
+                      f"{num(b_si) if b_si is not None else '-'})"
         if kind == "added":
-            lines.append(f"{cid}: {key} added: {_raw(b)}{si_text}.")
+            lines.append(f"{cid}: {key} added: {raw_text(b)}{si_text}.")
         elif kind == "removed":
-            lines.append(f"{cid}: {key} removed (was {_raw(a)}){si_text}.")
+            lines.append(f"{cid}: {key} removed (was {raw_text(a)}){si_text}.")
         else:
-            lines.append(f"{cid}: {key} changed from {_raw(a)} to {_raw(b)}{si_text}.")
+            lines.append(f"{cid}: {key} changed from {raw_text(a)} to {raw_text(b)}{si_text}.")
     for cid, key, a, b, unit, rel in ch.results:
         u = f" {unit}" if unit and unit != "1" else ""
         if a is None or b is None:
             what = "new result" if a is None else "result no longer given"
-            lines.append(f"{cid}: {what} {key} ({_num(b if a is None else a)}{u}).")
+            lines.append(f"{cid}: {what} {key} ({num(b if a is None else a)}{u}).")
         else:
-            lines.append(f"{cid}: result {key} moved from {_num(a)} to {_num(b)}{u}"
-                         f" ({_rel(rel)}).")
+            lines.append(f"{cid}: result {key} moved from {num(a)} to {num(b)}{u}"
+                         f" ({rel_text(rel)}).")
     for cid, key, a, b in ch.checks:
         lines.append(f"{cid}: check {key} {a.upper()} → {b.upper()}.")
     return lines
@@ -254,39 +236,60 @@ def describe_changes(previous_results: dict[str, Any], new_results: dict[str, An
     return change_lines(compare(old, new), si=False)
 
 
-def diff_command(old: Path, new: Path) -> int:
-    """Print what changed from ``old`` to ``new``; exit 0 (2 when either is invalid)."""
-    from reportgen.cli.commands import load_plugins
+def verify_rows(embedded: dict[str, Any], rebuilt: dict[str, Any],
+                rtol: float) -> list[tuple[str, str, str, str, str]]:
+    """Rows (calc, item, embedded, rebuilt, note) for every result or check that differs
+    between a package's embedded results and its rebuild, calc by calc."""
+    ch = compare(Side(label="embedded", job_raw={}, results=embedded),
+                 Side(label="rebuilt", job_raw={}, results=rebuilt), rtol)
 
-    plugins = load_plugins()
-    a, b = load_side(Path(old), plugins), load_side(Path(new), plugins)
-    ch = compare(a, b)
-    out = sys.stdout
-    print(f"{a.label}  →  {b.label}", file=out)
-    print(f"  old: {old}\n  new: {new}", file=out)
-    if ch.package:
-        print("\nPackage", file=out)
-        for key, x, y in ch.package:
-            print(f"  {key:<14}{_raw(x)} → {_raw(y)}", file=out)
-    sections = (
-        ("Calcs", [f"  added    {c}" for c in ch.calcs_added]
-         + [f"  removed  {c}" for c in ch.calcs_removed]),
-        ("Inputs and criteria (as written; SI in brackets)", [
-            f"  {kind:<8} {cid:<20} {key:<30} {_raw(x)} → {_raw(y)}"
-            + (f"  [{_num(xs) if xs is not None else '-'} → {_num(ys) if ys is not None else '-'}]"
-               if xs != ys else "")
-            for cid, key, kind, x, y, xs, ys in ch.inputs]),
-        ("Results that moved (SI)", [
-            f"  {cid:<20} {key:<30} {_num(x) if x is not None else '-':>12} →"
-            f" {_num(y) if y is not None else '-':>12} {unit if unit != '1' else '':<8}"
-            f" {_moved(x, y, r)}" for cid, key, x, y, unit, r in ch.results]),
-        ("Check statuses that flipped", [
-            f"  {cid:<20} {key:<30} {x.upper()} → {y.upper()}" for cid, key, x, y in ch.checks]),
-    )
-    for title, rows in sections:
-        print(f"\n{title}", file=out)
-        print("\n".join(rows) if rows else "  none", file=out)
-    if a.si_inputs is None or b.si_inputs is None:
-        print("\nnote: SI input values are unavailable for a package whose calc types are not"
-              " installed here; raw job values are compared", file=out)
-    return int(ExitCode.OK)
+    def fmt(v: Any) -> str:
+        if v is None:
+            return "-"
+        return f"{v:.10g}" if isinstance(v, float) else str(v)
+
+    def rel(a: Any, b: Any) -> str:
+        if isinstance(a, (int, float)) and isinstance(b, (int, float)) and a:
+            return f"relative change {(b - a) / abs(a):+.2e}"
+        return ""
+
+    rows = [("package", key, fmt(a), fmt(b), "") for key, a, b in ch.package
+            if key in VERIFY_KEYS]
+    rows.sort(key=lambda r: VERIFY_KEYS.index(r[1]))
+    order = list(dict.fromkeys([*ch.common, *ch.calcs_removed, *ch.calcs_added]))
+    for cid in order:
+        if cid in ch.calcs_removed or cid in ch.calcs_added:
+            rows.append((str(cid), "(calc)", "present" if cid in ch.calcs_removed else
+                         "absent", "present" if cid in ch.calcs_added else "absent", ""))
+            continue
+        units = {key: (a, b) for c, key, a, b in ch.units if c == cid}
+        moved = {key: (a, b) for c, key, a, b, _u, _r in ch.results if c == cid}
+        for key in dict.fromkeys([*units, *moved]):
+            if key in moved and (moved[key][0] is None or moved[key][1] is None):
+                a, b = moved[key]
+                rows.append((cid, f"result {key}", fmt(a), fmt(b),
+                             "missing from the rebuild" if b is None else "new in the rebuild"))
+                continue
+            if key in units:
+                rows.append((cid, f"result {key} unit", fmt(units[key][0]),
+                             fmt(units[key][1]), ""))
+            if key in moved:
+                a, b = moved[key]
+                rows.append((cid, f"result {key}", fmt(a), fmt(b), rel(a, b)))
+        statuses = {key: (a, b) for c, key, a, b in ch.checks if c == cid}
+        values = [(key, part, a, b) for c, key, part, a, b in ch.check_values if c == cid]
+        for key in dict.fromkeys([*statuses, *(k for k, *_ in values)]):
+            if key in statuses:
+                a, b = statuses[key]
+                if "absent" in (a, b):
+                    rows.append((cid, f"check {key}", a, b, ""))
+                    continue
+                rows.append((cid, f"check {key} status", a.upper(), b.upper(),
+                             "status flipped"))
+            for k, part, a, b in values:
+                if k == key:
+                    rows.append((cid, f"check {key} {part}", fmt(a), fmt(b), rel(a, b)))
+        for c, a, b in ch.verification:
+            if c == cid:
+                rows.append((cid, "independent verification", fmt(a), fmt(b), ""))
+    return rows

@@ -127,6 +127,8 @@ class Claim:
     out_dir: Path
     locks: list[Path] = field(default_factory=list)
     made_dir: bool = False
+    #: what finishing a killed build's commits did (reportgen.cli prints them)
+    notes: list[str] = field(default_factory=list)
 
     @classmethod
     def open(cls, out_dir: Path) -> Claim:

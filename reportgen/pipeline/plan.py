@@ -1,28 +1,27 @@
-"""Build one job file into its package: compute, render, self-check, commit.
+"""The plan of one build, read top to bottom: load → compute → transforms → results →
+HTML → layout → self-check → commit (:func:`make_package`, then :func:`commit_package`).
 
-Nothing is written under a final name until the whole package exists and has passed
-its self-check; then the command's process commits its files together (reportgen.outputs).
+Each step is a plain function of plain values; how they are spread over processes is the
+scheduler's business (reportgen.pipeline.scheduler). Nothing is written under a final name
+until the whole package exists and has passed its self-check; then the command's process
+commits its files together (reportgen.pipeline.commit).
 """
 
 from __future__ import annotations
 
-import sys
-from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
 
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.document.compute import compute_document
 from reportgen.document.results import results_bytes
-from reportgen.errors import ExitCode, JobError, Problem
+from reportgen.errors import ExitCode, JobError, Problem, ThemeError
 from reportgen.job.load import Job, load_job
 from reportgen.model import Document
-from reportgen.package.archive import embedded_files
-from reportgen.pipeline.commit import (  # noqa: F401 - STALE_PART_SECONDS, atomic_write: used from here
-    STALE_PART_SECONDS,
+from reportgen.package.archive import embedded_files, manifest_bytes
+from reportgen.package.revisions import changes_since
+from reportgen.pipeline.commit import (
     Claim,
-    atomic_write,
     commit_outputs,
     journal_path,
     package_files,
@@ -32,7 +31,12 @@ from reportgen.pipeline.commit import (  # noqa: F401 - STALE_PART_SECONDS, atom
     refuse_existing,
     sweep_stale_parts,
 )
-from reportgen.pipeline.fork import Later
+from reportgen.pipeline.scheduler import Front, Scheduler
+from reportgen.render.assets import inline_assets
+from reportgen.render.html import render_html
+from reportgen.render.logo import firm_logo, jinja_hook
+from reportgen.render.pdf import ImageSource, RefusedResource, preload_renderer, write_pdf
+from reportgen.render.selfcheck import self_check
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -46,7 +50,7 @@ class BuildOptions:
     workers: int = 1
     template_dir: Path | None = None  # overrides the job's [package] template_dir
     self_check: bool = True
-    split: bool = False  # compute in a forked child, lay out here (reportgen.split)
+    split: bool = False  # compute in a forked child, lay out here (pipeline.scheduler)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -64,6 +68,7 @@ class BuildResult:
     revision: str = ""
     html: Path | None = None
     extra: dict = field(default_factory=dict)
+    notes: list[str] = field(default_factory=list)  # what the output folder needed done
 
 
 def output_paths(job: Job, out_dir: Path) -> tuple[Path, Path]:
@@ -88,135 +93,6 @@ def refuse_final(doc: Document, job: Job) -> None:
         raise JobError(problems)
 
 
-@dataclass(frozen=True)
-class Prepared:
-    """Everything a package needs before its layout (sent whole from a split child)."""
-
-    job: Job
-    doc: Document
-    results: bytes
-    html: str
-    files: list
-    roots: tuple[Path, ...]
-    images: Any  # render.assets.StagedAssets
-
-
-def package_html(doc: Document, job: Job, opts: BuildOptions, results: bytes,
-                 plugins: PluginSet | None = None, *, preload: bool = False, pool=None,
-                 prefetched=None, later: bool = False) -> tuple[Prepared, Iterator]:
-    """Draw the assets and write the final HTML.
-
-    Returns the prepared package and an iterator over the figures still being drawn
-    (empty unless ``later``): with ``later`` the layout may start before they exist.
-    """
-    from reportgen.package.archive import manifest_bytes
-    from reportgen.render.assets import start_assets
-    from reportgen.render.html import render_html
-    from reportgen.render.logo import firm_logo, jinja_hook
-
-    template_dir = opts.template_dir or job.template_dir
-    pending = start_assets(doc, cache_dir=opts.cache_dir, use_cache=opts.use_cache,
-                           workers=opts.workers, pool=pool, prefetched=prefetched)
-    if preload and pending.parallel:
-        from reportgen.render.pdf import preload_renderer
-
-        preload_renderer()  # import WeasyPrint while the workers draw
-    staged, rest = pending.stage(later=later and pending.parallel)
-    html = render_html(doc, staged.assets, template_dir=template_dir,
-                       logo=firm_logo(template_dir), extra_hook=jinja_hook(doc, plugins))
-    files = embedded_files(job, results, manifest_bytes(doc, job, results))
-    roots = (template_dir,) if template_dir else ()
-    return Prepared(job=job, doc=doc, results=results, html=html, files=files, roots=roots,
-                    images=staged), rest
-
-
-def package_pdf(prep: Prepared, later: Later | None = None) -> tuple[bytes, dict[str, bytes]]:
-    """Lay the package out: (PDF bytes, every image's SVG by URL).
-
-    Figures still being drawn come through ``later`` when the renderer paints them; one
-    that does not come (its worker failed) is drawn here.
-    """
-    from reportgen.render.pdf import RefusedResource, write_pdf
-
-    images = prep.images
-    got: dict[str, bytes] = {}
-
-    def get_later(url: str) -> bytes:
-        if url not in got:
-            payload = later.get(url) if later is not None else None
-            got[url] = payload if payload is not None else images.draw_here(url)
-        return got[url]
-
-    try:
-        pdf = write_pdf(prep.html, base_dir=prep.job.folder, attachments=prep.files,
-                        date=prep.job.info.date, extra_roots=prep.roots, images=images.ready,
-                        later=images.later, get_later=get_later)
-    except RefusedResource as exc:
-        if not prep.roots:  # the built-in templates ask for nothing of the kind
-            raise
-        # only a firm theme's templates can ask for a file or an embedding (job text is
-        # escaped): the theme is at fault
-        from reportgen.errors import ThemeError
-
-        raise ThemeError(Problem(str(prep.roots[0]), f"a template of this theme: {exc}")
-                         ) from exc
-    payloads = dict(images.ready)
-    payloads.update((url, get_later(url)) for url in images.later)
-    return pdf, payloads
-
-
-def prepare_package(path: Path, plugins: PluginSet, opts: BuildOptions, *,
-                    preload: bool = False, later: bool = False) -> tuple[Prepared, Iterator]:
-    """Everything before the layout, and the figures still being drawn (see package_html).
-
-    The drawing workers stop when the iterator is exhausted or closed.
-    """
-    job = load_job(path, plugins)
-    check_out_dir(opts.out_dir, path)
-    pdf_path, results_path = output_paths(job, opts.out_dir)
-    if not opts.force:
-        refuse_existing(path, [pdf_path, results_path])
-    preflight(path, [pdf_path, results_path])
-    pool = None
-    if opts.split and opts.workers > 1:
-        from reportgen.render.assets import warm_pool
-
-        pool = warm_pool(opts.workers)  # drawing workers load the typesetter meanwhile
-    try:  # the drawings stop the pool at their end (render.assets.Drawings)
-        return _prepare(job, plugins, opts, preload, pool, later)
-    except BaseException:
-        if pool is not None:  # wait: a worker left behind would outlive the build
-            pool.shutdown(wait=True, cancel_futures=True)
-        raise
-
-
-def _prepare(job: Job, plugins: PluginSet, opts: BuildOptions, preload: bool, pool,
-             later: bool) -> tuple[Prepared, Iterator]:
-    verify = verification_cache(opts)
-    prefetched = None
-    if pool is not None:
-        # Verification and drawing start in the workers now, side by side, instead of
-        # one after the other (reportgen.cache.EarlyVerification, render.assets.prefetch).
-        from reportgen.render.assets import prefetch
-        from reportgen.store import EarlyVerification
-
-        verify = EarlyVerification(verify, pool)
-        verify.start(job, plugins)
-        prefetched = prefetch((b for out in verify.outputs for b in out.blocks),
-                              job.info.units, cache_dir=opts.cache_dir,
-                              use_cache=opts.use_cache, pool=pool)
-    doc = compute_document(job, plugins, verify=verify)
-    if job.previous_package is not None:
-        from reportgen.package.archive import changes_since
-
-        doc = changes_since(doc, job)
-    if opts.final:
-        refuse_final(doc, job)
-    results = results_bytes(doc)
-    return package_html(doc, job, opts, results, plugins, preload=preload, pool=pool,
-                        prefetched=prefetched, later=later)
-
-
 @dataclass(frozen=True, kw_only=True)
 class MadePackage:
     """A package's bytes, made but not written: the command commits them."""
@@ -237,52 +113,84 @@ class MadePackage:
 
 def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
                  before=None) -> MadePackage:
-    """Compute, render and self-check one job; write nothing (see :func:`commit_package`).
+    """Build one job into its package's bytes; write nothing (the command commits them).
 
-    ``before()`` runs here before the compute, or, with a split, while the child starts it.
+    The steps, in order: load → compute → transforms → results → HTML (the front half,
+    :func:`front_half`) → layout → self-check. How they use processes is the scheduler's
+    business; ``before()`` runs here while the front half starts (the command claims the
+    output folder then).
     """
-    from reportgen.pipeline.fork import can_split, run_split_stream
+    sched = Scheduler(workers=opts.workers, split=opts.split, cache_dir=opts.cache_dir,
+                      use_cache=opts.use_cache)
 
-    later: Later | None = None
-    if opts.split and can_split():
-        # compute in a forked child while WeasyPrint imports here; the figures it is
-        # still drawing arrive while the layout runs (reportgen.split)
-        from reportgen.render.pdf import preload_renderer
-
-        def meanwhile() -> None:
-            preload_renderer()
-            if before is not None:  # while the child still computes: off the critical path
-                before()
-
-        prep, later = run_split_stream(
-            lambda: prepare_package(path, plugins, opts, later=True), meanwhile)
-    else:
+    def meanwhile() -> None:
+        preload_renderer()  # ~0.6 s, while the front half computes elsewhere
         if before is not None:
             before()
-        prep, rest = prepare_package(path, plugins, opts, preload=True)
-        for _ in rest:  # nothing is left for later here; this stops the workers
-            pass
+
+    front = sched.front(lambda: front_half(path, plugins, opts, sched), meanwhile)
+    images = sched.images(front)
     try:
-        pdf, payloads = package_pdf(prep, later)
+        with sched.layout():
+            pdf = layout(front, images)
     except BaseException:
-        if later is not None:
-            later.kill()  # the child ignores Ctrl-C: the command stops it
-            later = None
+        sched.stop()  # the child ignores Ctrl-C: the command stops it
         raise
-    finally:
-        if later is not None:
-            later.close()
-    job, doc = prep.job, prep.doc
+    sched.finish()
     if opts.self_check:
-        from reportgen.render.selfcheck import self_check
+        self_check(pdf, front.doc, embedded=[f.name for f in front.files])
+    return made_package(path, front, pdf, images.payloads() if opts.html else None)
 
-        self_check(pdf, doc, embedded=[f.name for f in prep.files])
-    outputs = [(f"{job.stem}.results.json", prep.results), (f"{job.stem}.pdf", pdf)]
-    if opts.html:
-        from reportgen.render.assets import inline_assets
 
+def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
+               sched: Scheduler) -> Front:
+    """Load the job, compute every calc once, apply the transforms, write the results and
+    the HTML: everything before the layout."""
+    job = load_job(path, plugins)
+    check_out_dir(opts.out_dir, path)
+    pdf_path, results_path = output_paths(job, opts.out_dir)
+    if not opts.force:
+        refuse_existing(path, [pdf_path, results_path])
+    preflight(path, [pdf_path, results_path])
+    sched.warm()
+    doc = compute_document(job, plugins, verify=sched.verify, on_computed=sched.on_computed)
+    if job.previous_package is not None:
+        doc = changes_since(doc, job)
+    if opts.final:
+        refuse_final(doc, job)
+    results = results_bytes(doc)
+    staged = sched.assets(doc)
+    theme = opts.template_dir or job.template_dir
+    html = render_html(doc, staged.assets, template_dir=theme, logo=firm_logo(theme),
+                       extra_hook=jinja_hook(doc, plugins))
+    files = embedded_files(job, results, manifest_bytes(doc, job, results))
+    return Front(job=job, doc=doc, results=results, html=html, files=files,
+                 roots=(theme,) if theme else (), ready=staged.ready, pending=staged.pending,
+                 jobs=staged.jobs)
+
+
+def layout(front: Front, images: ImageSource) -> bytes:
+    """The package's pages: the HTML laid out (WeasyPrint) into PDF/A-3b bytes."""
+    try:
+        return write_pdf(front.html, base_dir=front.job.folder, attachments=front.files,
+                         date=front.job.info.date, extra_roots=front.roots, images=images)
+    except RefusedResource as exc:
+        if not front.roots:  # the built-in templates ask for nothing of the kind
+            raise
+        # only a firm theme's templates can ask for a file or an embedding (job text is
+        # escaped): the theme is at fault
+        raise ThemeError(Problem(str(front.roots[0]), f"a template of this theme: {exc}")
+                         ) from exc
+
+
+def made_package(path: Path, front: Front, pdf: bytes,
+                 payloads: dict[str, bytes] | None) -> MadePackage:
+    """The package's files: results.json, the PDF (and the self-contained HTML)."""
+    job, doc = front.job, front.doc
+    outputs = [(f"{job.stem}.results.json", front.results), (f"{job.stem}.pdf", pdf)]
+    if payloads is not None:
         outputs.insert(0, (f"{job.stem}.html",
-                           inline_assets(prep.html, payloads).encode("utf-8")))
+                           inline_assets(front.html, payloads).encode("utf-8")))
     return MadePackage(job=path, calc_number=job.info.calc_number, revision=job.info.revision,
                        stem=job.stem, outputs=outputs, status=doc.status,
                        exit_code=ExitCode.CHECKS_FAIL if doc.failed else ExitCode.OK,
@@ -298,8 +206,7 @@ def claim_package(path: Path, opts: BuildOptions, claim: Claim) -> None:
     if names is None:
         return  # the job cannot name its files: loading it reports why
     check_out_dir(opts.out_dir, path)
-    for note in recover(opts.out_dir):
-        print(f"note: {note}", file=sys.stderr)
+    claim.notes += recover(opts.out_dir)
     calc, rev, stem = names
     claim.package(path, calc, rev, stem)
     results, pdf, *html = package_files(opts.out_dir, stem, opts.html)
@@ -316,8 +223,7 @@ def commit_package(made: MadePackage, opts: BuildOptions, claim: Claim) -> Build
     lock = claim.package(made.job, made.calc_number, made.revision, made.stem)
     outputs = [(out_dir / name, data) for name, data in made.outputs]
     try:
-        for note in recover(out_dir):
-            print(f"note: {note}", file=sys.stderr)
+        claim.notes += recover(out_dir)
         if not opts.force:
             refuse_existing(made.job, [out_dir / f"{made.stem}.pdf",
                                        out_dir / f"{made.stem}.results.json"])
@@ -326,7 +232,7 @@ def commit_package(made: MadePackage, opts: BuildOptions, claim: Claim) -> Build
         sweep_stale_parts(out_dir, [*(target for target, _ in outputs), journal])
         locks = [lock]
         if (out_dir / "register.json").exists():  # a set's register that lists it, too
-            from reportgen.pipeline.sets import register_with
+            from reportgen.pipeline.register import register_with
 
             locks.append(claim.wait("register"))
             outputs += register_with(out_dir, made)
@@ -340,7 +246,8 @@ def commit_package(made: MadePackage, opts: BuildOptions, claim: Claim) -> Build
                        exit_code=made.exit_code, checks_total=made.checks_total,
                        checks_failed=made.checks_failed, review_state=made.review_state,
                        title=made.title, calc_number=made.calc_number,
-                       revision=made.revision, html=html, extra={"date": made.date})
+                       revision=made.revision, html=html, extra={"date": made.date},
+                       notes=list(claim.notes))
 
 
 def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult:
@@ -351,13 +258,6 @@ def build_job(path: Path, plugins: PluginSet, opts: BuildOptions) -> BuildResult
         return commit_package(made, opts, claim)
     finally:
         claim.release()
-
-
-def verification_cache(opts: BuildOptions):
-    """Reuse independent-check rows from the cache folder unless --no-cache."""
-    from reportgen.store import VerificationCache, default_cache_dir
-
-    return VerificationCache((opts.cache_dir or default_cache_dir()) if opts.use_cache else None)
 
 
 def check_out_dir(out_dir: Path, job_path: Path) -> None:

@@ -5,27 +5,29 @@ and write the set's register (register.json and register PDF) beside the package
 from __future__ import annotations
 
 import hashlib
-import json
 import os
-import sys
-from collections.abc import Callable, Iterable
+from collections.abc import Callable
 from concurrent.futures import ProcessPoolExecutor, as_completed
-from dataclasses import asdict
+from dataclasses import asdict, dataclass, field
 from pathlib import Path
 from typing import Any
 
 from reportgen.errors import ExitCode, JobError, Problem, ReportgenError
 from reportgen.pipeline.commit import refuse_existing
 from reportgen.pipeline.plan import BuildOptions
-
-REGISTER_FORMAT = "reportgen.register/1"
-REGISTER_JSON, REGISTER_PDF = "register.json", "register.pdf"
+from reportgen.pipeline.register import (
+    REGISTER_JSON,
+    REGISTER_PDF,
+    register_files,
+    register_rows,
+)
 
 
 def build_one(path: str, opts: dict[str, Any]) -> dict[str, Any]:
     """Make one job's package in this process and return its bytes in the outcome; never
     raises (the outcome is data) and writes nothing: the command commits."""
-    from reportgen.cli.commands import error_text, load_plugins
+    from reportgen.calc.plugin_set import load_plugins
+    from reportgen.errors import error_text
     from reportgen.pipeline.plan import make_package
 
     values: dict[str, Any] = {k: (Path(v) if k in ("out_dir", "cache_dir", "template_dir")
@@ -111,51 +113,9 @@ def _leave_fast() -> None:
     (~0.6 s measured) while the set waits for its workers."""
     import atexit
 
-    from reportgen.cli import leave_now
+    from reportgen.pipeline.scheduler import leave_now
 
     atexit.register(leave_now, 0)  # runs first: atexit handlers run last-registered first
-
-
-class Progress:
-    """A rich progress bar on a terminal; one plain line per package otherwise."""
-
-    def __init__(self, total: int, label: str):
-        self.total, self.done, self.failed = total, 0, 0
-        self.tty = sys.stdout.isatty()
-        self._bar = None
-        if self.tty:
-            from rich.progress import BarColumn, MofNCompleteColumn, TextColumn
-            from rich.progress import Progress as RichProgress
-
-            self._bar = RichProgress(TextColumn("{task.description}"), BarColumn(),
-                                     MofNCompleteColumn(), TextColumn("{task.fields[info]}"))
-            self._bar.start()
-            self._task = self._bar.add_task(label, total=total, info="")
-
-    def update(self, outcome: dict[str, Any]) -> None:
-        self.done += 1
-        self.failed += 0 if outcome.get("ok") and outcome["exit_code"] == 0 else 1
-        line = describe(outcome)
-        if self._bar is not None:
-            self._bar.console.print(line, markup=False, highlight=False)
-            self._bar.update(self._task, advance=1,
-                             info=f"{self.failed} not clean · last {Path(outcome['job']).name}")
-        else:
-            print(f"[{self.done}/{self.total}] {line}", flush=True)
-
-    def close(self) -> None:
-        if self._bar is not None:
-            self._bar.stop()
-
-
-def describe(outcome: dict[str, Any]) -> str:
-    if not outcome.get("ok"):
-        first, *rest = outcome["error"].splitlines() or [""]
-        more = f" (+{len(rest)} more problems)" if rest else ""
-        return f"NOT BUILT {outcome['job']}: {first}{more}"
-    verdict = ("all checks pass" if not outcome["checks_failed"] else
-               f"{outcome['checks_failed']} of {outcome['checks_total']} checks FAIL")
-    return f"built {outcome['pdf']} [{verdict}; {outcome['review_state']}]"
 
 
 def set_names(files: list[Path]) -> dict[Path, tuple[str, str, str]]:
@@ -184,15 +144,31 @@ def set_names(files: list[Path]) -> dict[Path, tuple[str, str, str]]:
     return names
 
 
+@dataclass
+class SetResult:
+    """What a folder build did: one outcome per job (in job order), the packages
+    committed, and what finishing killed builds' commits in the folder did."""
+
+    outcomes: list[dict[str, Any]]
+    built: list[dict[str, Any]] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def exit_code(self) -> int:
+        return max((int(o["exit_code"]) for o in self.outcomes), default=0)
+
+
 def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: str = "local",
-                 scheduler: str | None = None, demo: bool = False) -> int:
+                 scheduler: str | None = None, demo: bool = False,
+                 on_done: Callable[[dict[str, Any]], None] | None = None) -> SetResult:
     """Build every job of ``folder`` and commit the packages and the register together.
 
     The workers hand back each package's bytes; they are staged here as they come, and
     the one commit at the end renames every package and the register into place. An
-    interrupt or failure before it leaves the output folder as it was.
+    interrupt or failure before it leaves the output folder as it was. ``on_done`` hears
+    of each package as it is made (the command's progress).
     """
-    from reportgen.cli.commands import job_files
+    from reportgen.job.load import job_files
     from reportgen.pipeline.commit import (
         Claim,
         package_files,
@@ -210,8 +186,7 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
     staged: dict[str, list] = {}
     targets: list[Path] = []
     try:
-        for note in recover(out_dir):
-            print(f"note: {note}", file=sys.stderr)
+        claim.notes += recover(out_dir)
         for path, (calc, rev, stem) in names.items():
             claim.package(path, calc, rev, stem)
             results, pdf, *html = package_files(out_dir, stem, opts.html)
@@ -226,7 +201,7 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
                     raise JobError(Problem(str(target), "already exists; reportgen demo"
                                            " replaces files only with --force (or give"
                                            " another --out folder)"))
-        return _build_set(files, opts, workers, executor, scheduler, claim, staged)
+        return _build_set(files, opts, workers, executor, scheduler, claim, staged, on_done)
     finally:
         from reportgen.pipeline.commit import discard
 
@@ -237,7 +212,8 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
 
 
 def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: str,
-               scheduler: str | None, claim, staged: dict[str, list]) -> int:
+               scheduler: str | None, claim, staged: dict[str, list],
+               on_done: Callable[[dict[str, Any]], None] | None) -> SetResult:
     from reportgen.pipeline.commit import stage
 
     out_dir = opts.out_dir
@@ -252,7 +228,6 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
 
         threading.Thread(target=preload_renderer, name="reportgen-preload",
                          daemon=True).start()
-    progress = Progress(len(files), "building")
     as_named = {str(p.absolute()): str(p) for p in files}
 
     def done(outcome: dict[str, Any]) -> None:
@@ -270,29 +245,14 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
                 outcome.update(ok=False, exit_code=int(ExitCode.INVALID_INPUT),
                                error=f"cannot write the package into {out_dir}:"
                                f" {exc.strerror or exc}")
-        progress.update(outcome)
+        if on_done is not None:
+            on_done(outcome)
 
-    try:
-        outcomes = run_tasks(build_one, [(str(p.absolute()), opts_dict) for p in files],
-                             workers=workers, executor=executor, scheduler=scheduler,
-                             on_done=done, cost=_job_size)
-    finally:
-        progress.close()
+    outcomes = run_tasks(build_one, [(str(p.absolute()), opts_dict) for p in files],
+                         workers=workers, executor=executor, scheduler=scheduler,
+                         on_done=done, cost=_job_size)
     built = _commit_set(outcomes, opts, claim, staged)
-    for o in outcomes:
-        if not o.get("ok"):
-            for line in o["error"].splitlines():
-                print(f"error: {line}", file=sys.stderr)
-    if built:
-        print(f"register: {out_dir / REGISTER_PDF}  {out_dir / REGISTER_JSON}")
-    n_bad = len(outcomes) - len(built)
-    print(f"{len(built)} of {len(outcomes)} packages built"
-          + (f"; {n_bad} not built" if n_bad else "")
-          + f"; {sum(1 for o in built if o['checks_failed'])} with failing checks")
-    if not built and outcomes:
-        codes = [o["exit_code"] for o in outcomes]
-        return max(codes)
-    return max(o["exit_code"] for o in outcomes)
+    return SetResult(outcomes=outcomes, built=built, notes=list(claim.notes))
 
 
 def worker_options(opts: BuildOptions) -> dict[str, Any]:
@@ -323,8 +283,7 @@ def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
     )
 
     out_dir = opts.out_dir
-    for note in recover(out_dir):
-        print(f"note: {note}", file=sys.stderr)
+    claim.notes += recover(out_dir)
     built, seen = [], set()
     for o in outcomes:
         if not o.get("ok"):
@@ -337,7 +296,7 @@ def _commit_set(outcomes: list[dict[str, Any]], opts: BuildOptions, claim,
             if not opts.force:
                 refuse_existing(Path(o["job"]), [Path(o["pdf"]), Path(o["results"])])
         except JobError as exc:
-            from reportgen.cli.commands import error_text
+            from reportgen.errors import error_text
 
             o.update(ok=False, exit_code=int(ExitCode.INVALID_INPUT), error=error_text(exc))
             continue
@@ -368,42 +327,3 @@ def _job_size(item: tuple) -> float:
         return float(Path(item[0]).stat().st_size)
     except OSError:
         return 0.0
-
-
-def register_rows(built: Iterable[dict[str, Any]]) -> list[dict[str, Any]]:
-    keys = ("calc_number", "revision", "date", "title", "status", "checks_passed",
-            "checks_failed", "review_state", "sha256")
-    rows = [{k: o[k] for k in keys} | {"file": Path(o["pdf"]).name} for o in built]
-    return sorted(rows, key=lambda r: (r["calc_number"], r["revision"]))
-
-
-def register_files(out_dir: Path, rows: list[dict[str, Any]]) -> list[tuple[Path, bytes]]:
-    """A register of ``rows`` (see register_rows): (path, bytes) of its JSON and its PDF."""
-    from reportgen.render.register import register_pdf
-
-    data = {"format": REGISTER_FORMAT, "packages": rows}
-    return [(out_dir / REGISTER_JSON,
-             (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8")),
-            (out_dir / REGISTER_PDF, register_pdf(rows))]
-
-
-def register_with(out_dir: Path, made) -> list[tuple[Path, bytes]]:
-    """The folder's register with the row of the package ``made`` brought up to date,
-    or [] if the folder has no register that lists it. A single build of one package of
-    a set commits this with the package, so the register's hashes stay those on disk."""
-    try:
-        data = json.loads((out_dir / REGISTER_JSON).read_bytes())
-        rows = list(data["packages"])
-        index = [r.get("file") for r in rows].index(f"{made.stem}.pdf")
-    except (OSError, ValueError, KeyError, TypeError, AttributeError):
-        return []
-    if data.get("format") != REGISTER_FORMAT:
-        return []
-    pdf = dict(made.outputs)[f"{made.stem}.pdf"]
-    rows[index] = register_rows([{
-        "calc_number": made.calc_number, "revision": made.revision, "date": made.date,
-        "title": made.title, "status": made.status,
-        "checks_passed": made.checks_total - made.checks_failed,
-        "checks_failed": made.checks_failed, "review_state": made.review_state,
-        "sha256": hashlib.sha256(pdf).hexdigest(), "pdf": f"{made.stem}.pdf"}])[0]
-    return register_files(out_dir, rows)

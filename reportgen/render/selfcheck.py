@@ -323,9 +323,24 @@ def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None)
         raise RenderError("self-check of the written PDF failed: " + "; ".join(problems))
 
 
-def _embedded_problems(p, expected: list[str]) -> list[str]:
-    from reportgen.package.archive import page_attachments
+def page_attachments(pdf: Any) -> list[str]:
+    """Files attached to pages of an open ``pikepdf.Pdf`` (annotations), as "NAME (page N)".
 
+    They are embedded files too, outside the document's list of attachments; a package
+    of this tool has none.
+    """
+    found = []
+    for number, page in enumerate(pdf.pages, start=1):
+        for annot in page.obj.get("/Annots", ()):
+            if annot.get("/Subtype") == "/FileAttachment":
+                spec = annot.get("/FS", {})
+                name = spec.get("/UF", spec.get("/F", "?")) if hasattr(spec, "get") else "?"
+                found.append(f"{name} (page {number})")
+    return found
+
+
+
+def _embedded_problems(p, expected: list[str]) -> list[str]:
     names = sorted(str(n) for n in p.attachments)
     out = [f"file {n} is attached to a page" for n in page_attachments(p)]
     if names != expected:
