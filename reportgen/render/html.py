@@ -135,7 +135,8 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
                                           for b in range(len(m.values[a]))}) > 1 else v
 
     def matrix_unit(m: Matrix) -> str:
-        dims = {m.dimension(a, b) for a in range(len(m.values)) for b in range(len(m.values[a]))}
+        dims = {m.dimension(a, b) for a in range(len(m.values))
+                for b in range(len(m.values[a]))}
         return column_unit(dims.pop()) if len(dims) == 1 else ""
 
     env.globals.update(
