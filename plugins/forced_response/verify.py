@@ -1,6 +1,5 @@
-"""forced_response's second method: the transfer functions of m·x'' + c·x' + k·x = F(t)
-(scipy.signal.freqresp) and the equation of motion integrated over its periodic steady state
-(scipy.integrate.solve_ivp with a shooting step); numpy and scipy only, never the method."""
+"""forced_response's second method (numpy and scipy, never the method): transfer functions by
+scipy.signal.freqresp, and the periodic steady state integrated by solve_ivp with shooting."""
 
 from __future__ import annotations
 

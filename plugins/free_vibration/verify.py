@@ -1,6 +1,5 @@
-"""free_vibration's second method: eigenvalues of the state matrix, the equation of motion
-integrated numerically (or propagated by the matrix exponential), and peaks of the integrated
-response; numpy and scipy only, never the method's formulas."""
+"""free_vibration's second method (numpy and scipy, never the method): state-matrix eigenvalues,
+the equation of motion integrated (or propagated by expm), peaks of the integrated response."""
 
 from __future__ import annotations
 

@@ -1,6 +1,5 @@
-"""isolation's method: the stiffness the job describes, each mount's share of the weight, and
-the per-mount values the table lists; pure functions of SI floats (no document model).
-Transmissibility, its peak and the ratio a target needs come from the shared mechanics."""
+"""isolation's method (pure functions of SI floats, no document model): the stiffness a job
+describes, each mount's load and table values; transmissibility itself is the mechanics'."""
 
 from __future__ import annotations
 

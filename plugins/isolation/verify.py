@@ -1,7 +1,5 @@
-"""isolation's second method: transfer functions and a state-space model of the mounted mass
-(scipy.signal), a time integration (solve_ivp) or the state-space resolvent, Brent's root of the
-target, a numerical maximum of the peak, and the rigid base's stiffness matrix for the mount
-loads; numpy and scipy only, never the method or the shared mechanics."""
+"""isolation's second method (numpy and scipy, never the method or the mechanics): transfer
+functions, time integration or resolvent, Brent's root, numerical peak, rigid-base statics."""
 
 from __future__ import annotations
 

@@ -1,6 +1,5 @@
-"""Shared mechanics of the built-in calc types: single-degree-of-freedom response
-(``sdof``), frequency grids for figures (``spectra``) and figure/text values
-(``display``) and the damping inputs (``inputs``)."""
+"""The mechanics every built-in calc type shares, one definition each: SDOF response
+(``sdof``), figure grids (``spectra``), figure and text values (``display``), damping inputs."""
 
 from .display import quantity_text, series_values
 from .inputs import DAMPING_INPUTS, damping_inputs, damping_problems

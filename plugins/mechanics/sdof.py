@@ -1,9 +1,9 @@
-"""Single-degree-of-freedom mechanics, one definition each: the formula a Sheet prints and the
-numpy function that evaluates it in the same order of operations (so both give the same bits).
+"""Single-degree-of-freedom mechanics, each quantity once: the formula a Sheet prints and the
+numpy function that sweeps it, with the same operations in the same order.
 
 m·x'' + c·x' + k·x = F(t), r = ω/ω_n, ζ = c/(2√(km)) (Thomson & Dahleh, Ch. 2-3; Rao §3.4-3.7,
-§9.10). The ``*_formula`` helpers return the printed expression with the operand names a calc
-uses (``r_req``, ``delta_max``, ...); the functions take floats or numpy arrays.
+§9.10). The ``*_formula`` helpers take the operand name a calc prints (``r_req``,
+``delta_max``); the functions take floats (and return floats) or numpy arrays.
 """
 
 from __future__ import annotations
