@@ -1,0 +1,39 @@
+"""forced_response's design checks, written onto the Sheet from the printed values."""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+from reportgen_plugins.mechanics import quantity_text
+
+from reportgen import Sheet
+from reportgen.calc import linear_validity_check
+
+from . import text
+from .working import Printed
+
+
+def write(s: Sheet, kind: str, crit: Mapping[str, float], v: Printed,
+          band: tuple[float, float], units: str) -> None:
+    linear_validity_check(s, v.D, "dynamic amplification D")
+    s.check("resonance-margin",
+            "Resonance margin |f − f_n|/f_n not below the minimum (forcing frequency"
+            " outside the resonance band)",
+            value=v.margin, limit=crit["min_resonance_margin"], comparison=">=",
+            note=text.margin_note(v.margin_f, band))
+    if "max_displacement" in crit:
+        s.check("max-displacement",
+                "Displacement amplitude" + (" of the mass (absolute)" if kind == "support"
+                                            else "") + " within the limit",
+                value=v.X, limit=crit["max_displacement"], comparison="<=",
+                dimension="length")
+    if "max_velocity" in crit:
+        s.check("max-velocity", "Vibration velocity (peak) within the limit",
+                value=v.V, limit=crit["max_velocity"], comparison="<=",
+                dimension="velocity",
+                note=f"RMS {quantity_text(v.V_rms, 'velocity', units)}; the criterion is"
+                     " compared with the peak")
+    if "max_transmitted_force" in crit:
+        s.check("max-transmitted-force", "Force into the support within the limit",
+                value=v.F_T, limit=crit["max_transmitted_force"], comparison="<=",
+                dimension="force")

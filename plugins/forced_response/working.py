@@ -1,0 +1,190 @@
+"""forced_response's working: the equations written onto the Sheet in reading order. The
+Sheet evaluates each printed formula, so the values that follow are the printed ones."""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+from typing import Any
+
+from reportgen_plugins.mechanics import (
+    absolute_phase_lag_formula,
+    amplification_formula,
+    critical_damping_formula,
+    phase_lag_formula,
+)
+
+from reportgen import Sheet
+
+from .method import unbalance
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Printed:
+    """The printed values the checks, text and figures read."""
+
+    omega_n: float
+    f_n: float
+    zeta: float
+    c: float
+    f: float
+    omega: float
+    r: float
+    D: float
+    phi: float
+    F_0: float
+    X: float
+    V: float
+    V_rms: float
+    F_T: float
+    margin: float
+    margin_f: float
+
+
+def write(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str]) -> Printed:
+    m, k = p["mass"], p["stiffness"]
+    wn = s.equation("omega_n", "sqrt(k/m)", "angular_frequency", k=k, m=m,
+                    description="Undamped angular natural frequency")
+    fn = s.equation("f_n", "omega_n/(2*pi)", "frequency", omega_n=wn,
+                    key="natural_frequency", key_result=True,
+                    description="Undamped natural frequency")
+    cc = s.equation("c_c", critical_damping_formula(), "damping", k=k, m=m,
+                    description="Critical damping coefficient")
+    if "damping_coefficient" in given:
+        c = p["damping_coefficient"]
+        zeta = s.equation("zeta", "c/c_c", key="damping_ratio", c=c, c_c=cc,
+                          description="Damping ratio")
+    else:
+        zeta = p.get("damping_ratio", 0.0)
+        s.result("damping_ratio", zeta, "dimensionless", "zeta", "Damping ratio")
+        c = s.equation("c", "zeta*c_c", "damping", zeta=zeta, c_c=cc,
+                       key="damping_coefficient", description="Damping coefficient")
+
+    if kind == "unbalance":
+        f = s.equation("f", "N/60", "frequency", N=p["speed"] * 60.0,
+                       key="forcing_frequency", key_result=True,
+                       description="Forcing frequency from the running speed N in rpm"
+                                   " (revolutions per minute)")
+    else:
+        f = s.result("forcing_frequency", p["frequency"], "frequency", "f",
+                     "Forcing frequency", key_result=True)
+    w = s.equation("omega", "2*pi*f", "angular_frequency", f=f,
+                   description="Angular forcing frequency")
+    r = s.equation("r", "omega/omega_n", omega=w, omega_n=wn, key="frequency_ratio",
+                   key_result=True, description="Frequency ratio")
+    dyn = s.equation("D", amplification_formula(), r=r, zeta=zeta,
+                     key="dynamic_amplification", key_result=True,
+                     description="Dynamic amplification factor")
+    if kind == "support":
+        phi, x = _support_motion(s, p, given, zeta, r, w, dyn)
+        f0 = 0.0
+    else:
+        phi, x, f0 = _force(s, kind, p, given, m, k, zeta, r, w, dyn)
+    v = s.equation("V", "omega*X", "velocity", omega=w, X=x, key="velocity_amplitude",
+                   key_result=True, description="Vibration velocity, peak (zero-to-peak)")
+    v_rms = s.equation("V_rms", "V/sqrt(2)", "velocity", V=v, key="velocity_rms",
+                       description="Vibration velocity, RMS (peak/√2)")
+    s.equation("A", "omega**2*X", "acceleration", omega=w, X=x,
+               key="acceleration_amplitude", description="Acceleration amplitude")
+    if kind == "support":
+        f_t = s.equation("F_T", "m*omega**2*X", "force", m=m, omega=w, X=x,
+                         key="transmitted_force", key_result=True,
+                         description="Force amplitude in the spring and damper,"
+                                     " k·Z·√(1 + (2ζr)²), equal to the mass's inertia"
+                                     " force m·ω²·X")
+    else:
+        t_f = s.equation("T_F", "sqrt(1 + (2*zeta*r)**2)*D", zeta=zeta, r=r, D=dyn,
+                         key="force_transmissibility",
+                         description="Force transmissibility F_T/F_0")
+        f_t = s.equation("F_T", "T_F*F_0", "force", T_F=t_f, F_0=f0,
+                         key="transmitted_force", key_result=True,
+                         description="Amplitude of the force through spring and damper"
+                                     " into the support")
+    margin = s.equation("M_r", "abs(f - f_n)/f_n", f=f, f_n=fn, key="resonance_margin",
+                        key_result=True,
+                        description="Resonance margin, relative to the natural frequency")
+    margin_f = s.equation("M_f", "abs(f - f_n)/f", f=f, f_n=fn,
+                          description="The same separation relative to the forcing"
+                                      " frequency, as some practice defines it (for"
+                                      " information; not checked)")
+    return Printed(omega_n=wn, f_n=fn, zeta=zeta, c=c, f=f, omega=w, r=r, D=dyn, phi=phi,
+                   F_0=f0, X=x, V=v, V_rms=v_rms, F_T=f_t, margin=margin, margin_f=margin_f)
+
+
+def _support_motion(s: Sheet, p: Mapping[str, Any], given: frozenset[str], zeta: float,
+                    r: float, w: float, dyn: float) -> tuple[float, float]:
+    """Phases, support amplitude, motion transmissibility, X and Z; returns (φ, X)."""
+    phi = s.equation("phi", absolute_phase_lag_formula(), "angle", zeta=zeta, r=r,
+                     key="phase_lag",
+                     description="Phase lag of the mass's absolute motion behind the"
+                                 " support motion (0 to π)")
+    s.equation("phi_z", phase_lag_formula(), "angle", zeta=zeta, r=r,
+               key="relative_phase_lag",
+               description="Phase lag of the relative displacement z = x − y behind"
+                           " the support motion")
+    if "base_acceleration" in given:
+        y_amp = s.equation("Y", "a_b/omega**2", "length", a_b=p["base_acceleration"],
+                           omega=w, description="Support displacement amplitude from"
+                                                " the acceleration amplitude")
+    else:
+        y_amp = p["base_displacement"]
+    tr = s.equation("T", "sqrt(1 + (2*zeta*r)**2)*D", zeta=zeta, r=r, D=dyn,
+                    key="motion_transmissibility", key_result=True,
+                    description="Motion transmissibility X/Y (absolute motion)")
+    x = s.equation("X", "T*Y", "length", T=tr, Y=y_amp, key="displacement_amplitude",
+                   key_result=True,
+                   description="Absolute displacement amplitude of the mass")
+    s.equation("Z", "r**2*D*Y", "length", r=r, D=dyn, Y=y_amp,
+               key="relative_displacement",
+               description="Relative displacement amplitude z = x − y (deflection of"
+                           " the spring)")
+    return phi, x
+
+
+def _force(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str], m: float,
+           k: float, zeta: float, r: float, w: float, dyn: float
+           ) -> tuple[float, float, float]:
+    """Phase, force amplitude and X of an applied force or unbalance; returns (φ, X, F_0)."""
+    phi = s.equation("phi", phase_lag_formula(), "angle", zeta=zeta, r=r,
+                     key="phase_lag",
+                     description="Phase lag of the displacement behind the force"
+                                 " (0 to π)")
+    if kind == "force":
+        f0 = p["force_amplitude"]
+        x_st = s.equation("X_st", "F_0/k", "length", F_0=f0, k=k,
+                          key="static_displacement",
+                          description="Displacement under a static force F_0")
+        x = s.equation("X", "X_st*D", "length", X_st=x_st, D=dyn,
+                       key="displacement_amplitude", key_result=True,
+                       description="Displacement amplitude")
+        return phi, x, f0
+    if "unbalance" in given:
+        u = p["unbalance"]
+    else:
+        u = s.equation("U", "m_e*e", "mass_length", m_e=p["unbalance_mass"],
+                       e=p["eccentricity"], key="unbalance",
+                       description="Rotating unbalance")
+    f0 = s.equation("F_0", "U*omega**2", "force", U=u, omega=w,
+                    key="unbalance_force",
+                    description="Amplitude of the rotating unbalance force")
+    x = s.equation("X", "U*r**2*D/m", "length", U=u, m=m, r=r, D=dyn,
+                   key="displacement_amplitude", key_result=True,
+                   description="Displacement amplitude")
+    return phi, x, f0
+
+
+def passage_amplitude(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
+                      m: float, k: float, zeta: float, wn: float, f0: float) -> float:
+    """The steady-state amplitude at r = 1: what a slow passage through resonance nears."""
+    what = "Steady-state amplitude if the excitation dwelt at resonance (r = 1, D = 1/(2ζ))"
+    if kind == "unbalance":
+        return s.equation("X_res", "U/(2*zeta*m)", "length", U=unbalance(p), m=m,
+                          zeta=zeta, description=what)
+    if kind == "force":
+        return s.equation("X_res", "F_0/(2*zeta*k)", "length", F_0=f0, k=k, zeta=zeta,
+                          description=what)
+    if "base_displacement" in given:
+        return s.equation("X_res", "sqrt(1 + (2*zeta)**2)/(2*zeta)*Y", "length", zeta=zeta,
+                          Y=p["base_displacement"], description=what)
+    return s.equation("X_res", "sqrt(1 + (2*zeta)**2)/(2*zeta)*a_b/omega_n**2", "length",
+                      zeta=zeta, a_b=p["base_acceleration"], omega_n=wn, description=what)

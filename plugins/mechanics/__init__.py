@@ -1,0 +1,35 @@
+"""The mechanics every built-in calc type shares, one definition each: SDOF response
+(``sdof``), figure grids (``spectra``), figure and text values (``display``), damping inputs."""
+
+from .display import quantity_text, series_values
+from .inputs import DAMPING_INPUTS, damping_inputs, damping_problems
+from .sdof import (
+    absolute_phase_lag,
+    absolute_phase_lag_formula,
+    amplification_formula,
+    critical_damping_formula,
+    damping_ratio,
+    dynamic_amplification,
+    frequency_from_deflection,
+    frequency_from_deflection_formula,
+    natural_frequency,
+    natural_period,
+    peak_ratio,
+    peak_ratio_formula,
+    phase_lag,
+    phase_lag_formula,
+    required_ratio,
+    transmissibility,
+    transmissibility_formula,
+)
+from .spectra import ratio_grid, resonance_grid
+
+__all__ = [
+    "DAMPING_INPUTS", "damping_inputs", "damping_problems",
+    "absolute_phase_lag", "absolute_phase_lag_formula", "amplification_formula",
+    "critical_damping_formula", "damping_ratio", "dynamic_amplification",
+    "frequency_from_deflection", "frequency_from_deflection_formula", "natural_frequency",
+    "natural_period", "peak_ratio", "peak_ratio_formula", "phase_lag", "phase_lag_formula",
+    "quantity_text", "ratio_grid", "required_ratio", "resonance_grid", "series_values",
+    "transmissibility", "transmissibility_formula",
+]

@@ -1,0 +1,28 @@
+"""What every calc type's figures and text share: the values a figure series holds and a
+quantity written into a sentence in the package's units."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+
+from reportgen.units import format_number, table_display
+
+#: Decimals a figure series keeps: below a drawing's resolution, and it clears the last-bit
+#: noise that would otherwise change a drawing's bytes (and cache key) from run to run.
+SERIES_DECIMALS = 12
+
+
+def series_values(values: Any, decimals: int | None = SERIES_DECIMALS) -> tuple[float, ...]:
+    """A figure series as a tuple of floats, rounded to ``decimals`` (None: as computed)."""
+    a = np.asarray(values, dtype=float)
+    if decimals is not None:
+        a = np.round(a, decimals)
+    return tuple(float(v) for v in a)
+
+
+def quantity_text(value: float, dimension: str, units: str, digits: int = 4) -> str:
+    """``value`` (SI) as text in the units an engineer reads in a table: "12.5 mm", "0.49 in"."""
+    shown, unit = table_display(value, dimension, units)
+    return f"{format_number(shown, digits)} {unit}".strip()
