@@ -140,8 +140,8 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
         return column_unit(dims.pop()) if len(dims) == 1 else ""
 
     env.globals.update(
-        column_unit=column_unit, matrix_unit=matrix_unit, cell_is_number=cell_is_number, cell_text=cell_text,
-        matrix_cell=matrix_cell,
+        column_unit=column_unit, matrix_unit=matrix_unit, cell_is_number=cell_is_number,
+        cell_text=cell_text, matrix_cell=matrix_cell,
         asset=asset, block_kind=lambda b: type(b).__name__, sym=symbol_html, qv=qv, qu=qu,
         q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=units,
         dimension_label=lambda d: (DIMENSIONS[d].us_label if units == "US"
