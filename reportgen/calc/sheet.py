@@ -89,6 +89,14 @@ class Sheet:
                         key_result=key_result)
         return value
 
+    def curve(self, expression: str, **operands: Any) -> Any:
+        """``expression`` over arrays (for a figure): the same formula an equation prints,
+        evaluated elementwise (see :func:`reportgen.formula.evaluate_array`)."""
+        missing = _formula.names_in(expression) - operands.keys()
+        if missing:
+            raise _formula.FormulaError(f"formula {expression!r} needs {sorted(missing)}")
+        return _formula.evaluate_array(expression, operands)
+
     def result(self, key: str, value: float, dimension: str, symbol: str, description: str,
                *, key_result: bool = False) -> float:
         self._results[key] = ResultRow(key=key, symbol=symbol, description=description,

@@ -73,10 +73,6 @@ class InputSpec:
     formats: tuple[str, ...] = ()
     max_bytes: int = 64 * 1024 * 1024
 
-    @property
-    def optional(self) -> bool:
-        return not self.required or self.default is not None
-
 
 @dataclass(frozen=True, kw_only=True, slots=True)
 class DataFile:

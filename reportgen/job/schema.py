@@ -11,7 +11,7 @@ import re
 from typing import Any
 
 from reportgen.calc.plugin_set import PluginSet
-from reportgen.calc.spec import InputSpec
+from reportgen.calc.spec import Column, InputSpec
 from reportgen.job.load import (
     CALC_KEYS,
     DATE_PATTERN,
@@ -171,7 +171,7 @@ def unit_pattern(dimension: str) -> str:
 # ---------------------------------------------------------------- values
 
 
-def _sign_pattern(spec: InputSpec) -> str | None:
+def _sign_pattern(spec: InputSpec | Column) -> str | None:
     if spec.positive or (spec.minimum is not None and spec.minimum > 0):
         return _POSITIVE
     if spec.minimum is not None and spec.minimum >= 0:
@@ -179,7 +179,7 @@ def _sign_pattern(spec: InputSpec) -> str | None:
     return None
 
 
-def _number_range(spec: InputSpec) -> dict[str, Any]:
+def _number_range(spec: InputSpec | Column) -> dict[str, Any]:
     s: dict[str, Any] = {}
     if spec.positive:
         s["exclusiveMinimum"] = 0
@@ -190,7 +190,7 @@ def _number_range(spec: InputSpec) -> dict[str, Any]:
     return s
 
 
-def _quantity(spec: InputSpec) -> dict[str, Any]:
+def _quantity(spec: InputSpec | Column) -> dict[str, Any]:
     """One quantity as the job file writes it."""
     # $ref beside other keywords is ignored by draft-07 readers (some editors): allOf
     string: dict[str, Any] = {"allOf": [{"$ref": f"#/$defs/unit-{spec.dimension}"}]}
@@ -213,8 +213,39 @@ def _example(spec: InputSpec, value: float | None = None) -> Any:
     return f"{value:g} {dim.si_unit}".strip()
 
 
+def _column_schema(col: Column) -> dict[str, Any]:
+    if col.kind == "text":
+        s: dict[str, Any] = {"type": "string"}
+    elif col.kind == "integer":
+        s = {"type": "integer", **_number_range(col)}
+    else:
+        s = _quantity(col)
+    dim = DIMENSIONS[col.dimension]
+    unit = "" if col.dimension == "dimensionless" else f" ({dim.name.replace('_', ' × ')})"
+    return {**s, "description": col.description + unit}
+
+
 def _value_schema(spec: InputSpec) -> dict[str, Any]:
     dim = DIMENSIONS[spec.dimension]
+    if spec.kind == "choice":
+        s: dict[str, Any] = {"enum": list(spec.choices)}
+        if spec.default is not None:
+            s["default"] = spec.default
+        return {**s, "description": spec.description}
+    if spec.kind == "text":
+        return {"type": "string", "maxLength": spec.max_length,
+                "description": spec.description}
+    if spec.kind == "file":
+        suffixes = "|".join(re.escape(f) for f in spec.formats)
+        return {"type": "string", "description": spec.description + " (a file in the job's"
+                " folder, relative path)", **({"pattern": rf"(?i)({suffixes})$"}
+                                              if suffixes else {})}
+    if spec.kind == "table":
+        return {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
+                "description": spec.description + " (an array of tables, one per row)",
+                "items": {"type": "object", "additionalProperties": False,
+                          "properties": {c.name: _column_schema(c) for c in spec.columns},
+                          "required": [c.name for c in spec.columns if c.required]}}
     if spec.kind == "integer":
         s: dict[str, Any] = {"type": "integer", **_number_range(spec)}
     elif spec.kind == "pair":
