@@ -114,26 +114,26 @@ def build_command(args) -> int:
 
         progress = Progress(len(job_files([target])), "building")
         try:
-            result = build_folder(target, opts, workers=jobs, executor=executor,
-                                  scheduler=scheduler, demo=args.command == "demo",
-                                  on_done=progress.update)
+            done = build_folder(target, opts, workers=jobs, executor=executor,
+                                scheduler=scheduler, demo=args.command == "demo",
+                                on_done=progress.update)
         finally:
             progress.close()
-        for note in result.notes:
+        for note in done.notes:
             print(f"note: {note}", file=sys.stderr)
-        for o in result.outcomes:
+        for o in done.outcomes:
             if not o.get("ok"):
                 for line in o["error"].splitlines():
                     print(f"error: {line}", file=sys.stderr)
-        built = result.built
+        built = done.built
         if built:
             print(f"register: {args.out / REGISTER_PDF}  {args.out / REGISTER_JSON}")
-        n_bad = len(result.outcomes) - len(built)
-        print(f"{len(built)} of {len(result.outcomes)} packages built"
+        n_bad = len(done.outcomes) - len(built)
+        print(f"{len(built)} of {len(done.outcomes)} packages built"
               + (f"; {n_bad} not built" if n_bad else "")
               + f"; {sum(1 for o in built if o['checks_failed'])} with failing checks")
         _prune_cache(opts)
-        return result.exit_code
+        return done.exit_code
     if not target.exists():
         raise JobError(Problem(str(target), "no such job file"))
     if executor != "local":

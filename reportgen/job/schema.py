@@ -228,10 +228,10 @@ def _column_schema(col: Column) -> dict[str, Any]:
 def _value_schema(spec: InputSpec) -> dict[str, Any]:
     dim = DIMENSIONS[spec.dimension]
     if spec.kind == "choice":
-        s: dict[str, Any] = {"enum": list(spec.choices)}
+        choice: dict[str, Any] = {"enum": list(spec.choices), "description": spec.description}
         if spec.default is not None:
-            s["default"] = spec.default
-        return {**s, "description": spec.description}
+            choice["default"] = spec.default
+        return choice
     if spec.kind == "text":
         return {"type": "string", "maxLength": spec.max_length,
                 "description": spec.description}

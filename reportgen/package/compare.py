@@ -276,20 +276,20 @@ def verify_rows(embedded: dict[str, Any], rebuilt: dict[str, Any],
             if key in moved:
                 a, b = moved[key]
                 rows.append((cid, f"result {key}", fmt(a), fmt(b), rel(a, b)))
-        statuses = {key: (a, b) for c, key, a, b in ch.checks if c == cid}
-        values = [(key, part, a, b) for c, key, part, a, b in ch.check_values if c == cid]
+        statuses = {key: (sa, sb) for c, key, sa, sb in ch.checks if c == cid}
+        values = [(key, part, va, vb) for c, key, part, va, vb in ch.check_values if c == cid]
         for key in dict.fromkeys([*statuses, *(k for k, *_ in values)]):
             if key in statuses:
-                a, b = statuses[key]
-                if "absent" in (a, b):
-                    rows.append((cid, f"check {key}", a, b, ""))
+                sa, sb = statuses[key]
+                if "absent" in (sa, sb):
+                    rows.append((cid, f"check {key}", sa, sb, ""))
                     continue
-                rows.append((cid, f"check {key} status", a.upper(), b.upper(),
+                rows.append((cid, f"check {key} status", sa.upper(), sb.upper(),
                              "status flipped"))
-            for k, part, a, b in values:
+            for k, part, va, vb in values:
                 if k == key:
-                    rows.append((cid, f"check {key} {part}", fmt(a), fmt(b), rel(a, b)))
-        for c, a, b in ch.verification:
+                    rows.append((cid, f"check {key} {part}", fmt(va), fmt(vb), rel(va, vb)))
+        for c, fa, fb in ch.verification:
             if c == cid:
-                rows.append((cid, "independent verification", fmt(a), fmt(b), ""))
+                rows.append((cid, "independent verification", fmt(fa), fmt(fb), ""))
     return rows

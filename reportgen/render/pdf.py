@@ -183,7 +183,8 @@ class ImageSource(Protocol):
     points where that is known beforehand (a figure), else None; ``pending`` names the
     images still being drawn when the layout starts."""
 
-    pending: Collection[str]
+    @property
+    def pending(self) -> Collection[str]: ...
 
     def get(self, url: str) -> bytes | None: ...
 
