@@ -16,8 +16,8 @@ from typing import Any
 
 from reportgen.units import format_number
 
-__all__ = ["FormulaError", "evaluate", "evaluate_array", "is_scientific", "names_in", "number_latex",
-           "symbol_latex", "to_latex"]
+__all__ = ["FormulaError", "evaluate", "evaluate_array", "is_scientific", "names_in",
+           "number_latex", "symbol_latex", "to_latex"]
 
 CONSTANTS = {"pi": math.pi}
 FUNCTIONS: dict[str, Callable[..., float]] = {
