@@ -258,7 +258,7 @@ def run() -> None:
         sys.stdout.flush()  # a pipe is block-buffered: this is where a gone reader shows
     except BrokenPipeError:
         code = _stdout_gone()
-    from reportgen.pipeline.scheduler import leave_now
+    from reportgen.pipeline.lifeline import leave_now
 
     leave_now(code)
 

@@ -1,4 +1,5 @@
-"""Helper processes die with the command that started them and leave Ctrl-C to it.
+"""Helper processes die with the command that started them and leave Ctrl-C to it; the
+command itself leaves without the interpreter's teardown (:func:`leave_now`).
 
 Every child the core starts (the split child, drawing workers, set workers) calls
 :func:`bind_to_parent` first thing; pools pass :func:`pool_initializer` to do that.
@@ -147,3 +148,15 @@ def dask_setup(worker) -> None:
     """Dask's preload hook, run in each worker of a LocalCluster the command starts:
     the worker process is the command's child (its nanny lives in the command)."""
     bind_to_parent(os.getppid())
+
+
+def leave_now(code: int) -> None:
+    """Flush what was printed (a pipe is block-buffered) and end the process at once,
+    skipping the interpreter's teardown: freeing a laid-out document is one cyclic
+    collection over millions of objects (~0.7 s for 78 pages)."""
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):
+            pass
+    os._exit(code)

@@ -27,7 +27,6 @@ import contextlib
 import gc
 import hashlib
 import os
-import sys
 from collections.abc import Callable, Iterator
 from concurrent.futures import Future, ProcessPoolExecutor
 from dataclasses import dataclass, field
@@ -39,6 +38,7 @@ from reportgen.calc.sheet import CalcContext, CalcOutput
 from reportgen.document.compute import Computed
 from reportgen.document.verification import MISSING, VerificationCache
 from reportgen.model import Document
+from reportgen.pipeline.lifeline import leave_now
 from reportgen.render.assets import (
     AssetJob,
     Assets,
@@ -57,20 +57,10 @@ from reportgen.render.assets import (
 )
 from reportgen.render.figures import figure_points
 
+__all__ = ["Front", "Images", "Scheduler", "leave_now"]
+
 #: Below this many drawings a pool's start-up (~50 ms a worker) costs more than it saves.
 MIN_PARALLEL = 6
-
-
-def leave_now(code: int) -> None:
-    """Flush what was printed (a pipe is block-buffered) and end the process at once,
-    skipping the interpreter's teardown: freeing a laid-out document is one cyclic
-    collection over millions of objects (~0.7 s for 78 pages)."""
-    for stream in (sys.stdout, sys.stderr):
-        try:
-            stream.flush()
-        except (OSError, ValueError):
-            pass
-    os._exit(code)
 
 
 def _noop() -> None:
@@ -186,6 +176,7 @@ class Scheduler:
         self.pool: ProcessPoolExecutor | None = None
         self._verifying: dict[str, tuple[str | None, Future]] = {}
         self._drawing: dict[str, Future] = {}  # asset key (or the font job) -> future
+        self._queued: dict[str, AssetJob] = {}  # drawings waiting for the last compute
         self._chunks: list[tuple[list[str], Future]] = []
         self._ready: dict[str, bytes] = {}  # asset key -> SVG
         self._font: bytes | None = None
@@ -218,24 +209,36 @@ class Scheduler:
             self.pool = start_pool(self.workers, warm=True)
 
     def on_computed(self, c: Computed) -> None:
-        """A calc is computed: start its verification and its drawings in the pool."""
+        """A calc is computed: start its verification in the pool now, and line up its
+        drawings, which start as soon as the last calc is computed (milliseconds later)
+        behind every verification: the HTML waits for the rows, the layout can start
+        without the figures."""
         if self.pool is None:
             return
         key = self.verification.key(c.reg, c.ctx, c.output)
         if key is None or self.verification.get(key) is MISSING:
             self._verifying[c.spec.id] = (key, self.pool.submit(
                 _verify_remote, c.reg, c.ctx, c.output))
-        jobs = asset_jobs(c.output.blocks, c.ctx.units)
-        if any(kind == "equation" for kind, _b, _u in jobs.values()):
-            self._start_font()
-        for key_, job in sorted(jobs.items(), key=lambda kv: kv[1][0] == "figure"):
+        for key_, job in asset_jobs(c.output.blocks, c.ctx.units).items():
             if key_ not in self._drawing and key_ not in self._ready:
-                if self.store.get(key_) is None:  # equations first: the layout waits for them
-                    self._drawing[key_] = self.pool.submit(draw, job)
+                self._queued.setdefault(key_, job)
+
+    def _start_queued(self) -> None:
+        """Start the lined-up drawings: the math font first (the layout's first need),
+        then the equations (the layout waits for them), then the figures."""
+        if self.pool is None or not self._queued:
+            return
+        jobs = [(k, j) for k, j in self._queued.items() if self.store.get(k) is None]
+        self._queued.clear()
+        if any(j[0] == "equation" for _k, j in jobs):
+            self._start_font()
+        for key, job in sorted(jobs, key=lambda kv: kv[1][0] == "figure"):
+            self._drawing[key] = self.pool.submit(draw, job)
 
     def verify(self, reg: RegisteredCalc, ctx: CalcContext, output: CalcOutput):
         """The calc's verification rows: from the worker that started them, the cache, or
         computed here (``verify=`` of compute_document)."""
+        self._start_queued()  # every calc is computed by now: the drawings may start
         started = self._verifying.pop(ctx.calc_id, None)
         if started is None:
             return self.verification(reg, ctx, output)
@@ -248,6 +251,7 @@ class Scheduler:
         """Every figure and equation of ``doc`` by URL (and the math font's style sheet);
         what is drawn by now, what is pending (with its size where known) and how to draw
         it. What is neither cached nor started is started (or, without a pool, drawn)."""
+        self._start_queued()
         units = doc.info.units
         assets = Assets()
         todo: dict[str, AssetJob] = {}

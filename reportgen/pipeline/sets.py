@@ -113,7 +113,7 @@ def _leave_fast() -> None:
     (~0.6 s measured) while the set waits for its workers."""
     import atexit
 
-    from reportgen.pipeline.scheduler import leave_now
+    from reportgen.pipeline.lifeline import leave_now
 
     atexit.register(leave_now, 0)  # runs first: atexit handlers run last-registered first
 
