@@ -96,7 +96,10 @@ def to_json(v: Any) -> Any:
 WRONG = {"mass": "3 m", "length": "3 kg", "time": "3 Hz", "force": "3 kg",
          "stiffness": "350 kg", "damping": "3 kN/m", "velocity": "3 m/s**2",
          "acceleration": "3 m/s", "frequency": "3 s", "angular_frequency": "3 m",
-         "angle": "3 m", "mass_length": "3 kg", "dimensionless": "0.05 kg"}
+         "angle": "3 m", "mass_length": "3 kg", "dimensionless": "0.05 kg",
+         "moment": "3 kN", "rotational_stiffness": "3 kN/m", "moment_of_inertia": "3 kg*m",
+         "pressure": "3 kN", "density": "3 kg/m**2", "area": "3 m", "second_moment_of_area":
+         "3 m**2", "force_per_length": "3 kN"}
 #: other good spellings of each dimension (names, plurals, US units, spaces, exponents)
 SPELLINGS = {
     "mass": ["1200 kilograms", "2650 lb", "1.2 t", "1200kg"],
@@ -112,6 +115,14 @@ SPELLINGS = {
     "angle": ["30 deg", "0.5 rad", "0.5", "30 degrees"],
     "mass_length": ["0.5 kg*m", "500 g*mm", "0.5 kg m"],
     "dimensionless": ["0.05", "5 %", "5 percent"],
+    "moment": ["3 kN*m", "250 lbf*in", "3 kN m"],
+    "rotational_stiffness": ["20 kN*m/rad", "20 kN*m", "1e6 N m/rad"],
+    "moment_of_inertia": ["150 kg*m**2", "150 kg m^2", "5000 lb*in**2"],
+    "pressure": ["150 kPa", "20 psi", "3 kN/m**2", "3 kN/m²"],
+    "density": ["2400 kg/m**3", "145 lb/ft**3", "2400 kg/m³"],
+    "area": ["2 m**2", "30 in²", "2 m^2"],
+    "second_moment_of_area": ["4.2e8 mm**4", "900 in**4", "0.0004 m⁴"],
+    "force_per_length": ["2 kN/m", "150 lbf/ft", "2000 N/m"],
 }
 
 

@@ -74,15 +74,26 @@ UNIT_FORMS: dict[str, tuple[str, ...]] = {
     "frequency": ("H", "1/T", "D/T", "speed"),
     "angular_frequency": ("H", "1/T", "D/T", "speed"),
     "mass_length": ("M*L", "L*M"),
+    "moment": ("F*L", "L*F"),
+    "rotational_stiffness": ("F*L/D", "F*L", "L*F"),
+    "moment_of_inertia": ("M*L2", "L2*M"),
+    "pressure": ("P", "F/L2"),
+    "density": ("M/L3",),
+    "area": ("L2",),
+    "second_moment_of_area": ("L4",),
+    "force_per_length": ("F/L", "K"),
 }
 _CLASSES = {"D": "", "M": "[mass]", "L": "[length]", "T": "[time]",
             "F": "[length] * [mass] / [time] ** 2", "K": "[mass] / [time] ** 2",
-            "V": "[length] / [time]", "A": "[length] / [time] ** 2", "H": "1 / [time]"}
+            "V": "[length] / [time]", "A": "[length] / [time] ** 2", "H": "1 / [time]",
+            "P": "[mass] / [length] / [time] ** 2"}
 _META = re.compile(r"([\\^$.|?*+()\[\]{}/])")
 _MUL = r"(?:\s*[*·]\s*|\s+)"
 _DIV = r"\s*/\s*"
 _SQUARE = r"(?:\s*(?:\*\*|\^)\s*(?:2|\(2\))|²)"
 _INVERSE_SQUARE = r"(?:\s*(?:\*\*|\^)\s*(?:-2|\(-2\))|⁻²)"
+_CUBE = r"(?:\s*(?:\*\*|\^)\s*(?:3|\(3\))|³)"
+_FOURTH = r"(?:\s*(?:\*\*|\^)\s*(?:4|\(4\))|⁴)"
 _NUMBER = r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]{1,4})?"
 #: no leading '-' (minimum 0), and a mantissa with a non-zero digit (greater than zero)
 _NOT_NEGATIVE = r"^\s*\+?[0-9.]"
@@ -155,7 +166,8 @@ def _form(form: str) -> str:
             out += _MUL if part == "*" else _DIV
             continue
         cls, power = part[0], part[1:]
-        out += _factor(cls) + {"": "", "2": _SQUARE, "-2": _INVERSE_SQUARE}[power]
+        out += _factor(cls) + {"": "", "2": _SQUARE, "-2": _INVERSE_SQUARE, "3": _CUBE,
+                               "4": _FOURTH}[power]
     return out
 
 
