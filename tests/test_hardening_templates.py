@@ -105,7 +105,7 @@ def test_a_template_reaching_for_the_interpreter_exits_2_naming_file_and_line(
 
 
 def test_a_sandbox_refusal_raised_in_the_split_child_comes_back_as_exit_2(tmp_path):
-    # a real process: the build forks (reportgen.split) and the error crosses the pipe
+    # a real process: the build forks (the pipeline scheduler) and the error crosses the pipe
     root = tmp_path / "job"
     _theme(root / "theme", {"cover.html": '{{ cycler.__init__.__globals__.os.popen("id")'
                                           '.read() }}\n' + COVER_BODY})

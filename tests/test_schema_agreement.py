@@ -4,7 +4,7 @@ The corpus: the README's job and every sample job, each altered by a determinist
 mutation table (wrong units, wrong dimension, negative, zero, non-numeric, unknown and
 missing keys, dates, ids, plain numbers and numeric strings). For every copy, "the JSON
 Schema accepts it" (jsonschema, draft 2020-12, formats asserted) must equal "check accepts
-it" (reportgen.jobfile.load_job), except where the mutation falls under one of the
+it" (reportgen.job.load.load_job), except where the mutation falls under one of the
 schema's documented KNOWN_DIFFERENCES; each such exception is named by the mutation.
 """
 

@@ -77,7 +77,7 @@ def reportgen_prepare_jinja_env(env: Any, context: dict[str, Any]) -> None:
 
     Called once per package, after the built-in globals and filters are installed and
     before any template is loaded. Use it to add filters or globals that a firm's own
-    templates (``cover.html``, ``running.html``, see :mod:`reportgen.templates`) need.
+    templates (``cover.html``, ``running.html``, see :mod:`reportgen.render.theme`) need.
     Do not turn autoescaping off and do not mark job text safe: job files are untrusted.
     Each plugin's implementation is called on its own; if one raises, the build stops
     with a PluginError naming that plugin and its package (exit 3, nothing written).

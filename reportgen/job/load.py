@@ -41,7 +41,7 @@ MAX_EMBEDDED_TOTAL = 100_000_000
 #: embedded names the package itself uses; an attachment may not take one of them
 RESERVED_NAMES = frozenset({"job.toml", "results.json", "manifest.json", "environment.lock"})
 #: The shapes of ids, file-naming fields and dates: the validator and the JSON Schema
-#: (reportgen/schema.py) both use these.
+#: (reportgen/job/schema.py) both use these.
 ID_PATTERN = r"^[a-z0-9]+(-[a-z0-9]+)*$"
 MAX_ID = 64
 NAME_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$"
@@ -567,7 +567,7 @@ class _Validator:
 
     def _named(self, path: Path, text: str, field: str, kind: Kind,
                what: str = "") -> Path | None:
-        """``text`` by the one safe-path rule (reportgen.safepath); None and a problem if not."""
+        """``text`` by the one safe-path rule (reportgen.job.paths); None and a problem if not."""
         try:
             return job_relative_path(path.parent, text, field, kind=kind, file=self.fname,
                                      what=what)

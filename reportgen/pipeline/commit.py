@@ -44,7 +44,7 @@ _held: dict[Path, object] = {}
 
 def package_names(path: Path) -> tuple[str, str, str] | None:
     """(calc number, revision, file stem) read from a job file without validating the
-    rest of it, or None if they cannot be read; :func:`reportgen.jobfile.load_job` then
+    rest of it, or None if they cannot be read; :func:`reportgen.job.load.load_job` then
     reports why. Cheap (no units, no plugins): the command reads it before the build."""
     from reportgen.job.load import file_stem, parse_job_toml, read_job_bytes
 

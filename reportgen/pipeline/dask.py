@@ -36,7 +36,7 @@ def _client(scheduler: str | None, workers: int):
     # One thread a worker: a package build is CPU-bound Python, so threads would only
     # queue on the interpreter lock; processes give real parallelism.
     # The workers end with this process even when it is killed, and leave Ctrl-C to it
-    # (reportgen.lifeline): forked from a forkserver that preloads the lifeline, each is
+    # (reportgen.pipeline.lifeline): forked from a forkserver that preloads the lifeline, each is
     # bound from its first instant; the preload binds it to this process once it runs.
     import os
 

@@ -28,7 +28,7 @@ def theme_error(file: Path | str, message: str) -> ThemeError:
 
 
 class ThemeLoader(jinja2.BaseLoader):
-    """Templates from one folder, by the one safe-path rule (reportgen.safepath).
+    """Templates from one folder, by the one safe-path rule (reportgen.job.paths).
 
     A name that leaves the folder, a file that is a symbolic link (or lies under one)
     or is not a regular file, or one over ``limit`` bytes is refused (ThemeError), never
