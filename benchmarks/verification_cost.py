@@ -20,10 +20,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
 
 from hardening_d_support import job_text  # noqa: E402
 
-from reportgen.build import compute_document  # noqa: E402
+from reportgen.calc.plugin_set import load_plugin_set  # noqa: E402
+from reportgen.document.compute import compute_document  # noqa: E402
 from reportgen.errors import JobError  # noqa: E402
-from reportgen.jobfile import load_job  # noqa: E402
-from reportgen.plugins import get_plugin_manager  # noqa: E402
+from reportgen.job.load import load_job  # noqa: E402
 
 
 def _log(rng: random.Random, lo: float, hi: float) -> float:
@@ -60,7 +60,7 @@ def main() -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--samples", type=int, default=40)
     args = parser.parse_args()
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     rng = random.Random(2417)
     cases = list(FIXED) + [(p, _sample(rng, p)) for p in ("isolation", "free_vibration",
                                                           "forced_response")

@@ -1,15 +1,28 @@
 """reportgen: vibration calculation packages from TOML job files.
 
 The public API for calc-plugin authors is importable from here: :data:`hookimpl`,
-:class:`CalcType`, :class:`InputSpec`, :class:`Sheet`, the block types and the errors.
+:class:`CalcType`, :class:`InputSpec` (with :class:`Column` for table inputs and
+:class:`DataFile` for data files), :class:`Sheet`, the block types and the errors. The
+other public modules are :mod:`reportgen.units` (parsing and standard gravity) and
+:mod:`reportgen.testing` (the plugin authors' test kit); everything else is internal.
 """
 
-from importlib import metadata as _metadata
-
-from .calc import CalcContext, CalcOutput, CalcType, InputSpec, Sheet, VerificationCase
-from .errors import JobError, PluginError, RenderError, ReportgenError, VerificationError
-from .hookspecs import API_VERSION, hookimpl
-from .model import (
+from reportgen._version import __version__
+from reportgen.calc import (
+    CalcContext,
+    CalcOutput,
+    CalcType,
+    Column,
+    DataFile,
+    InputSpec,
+    Sheet,
+    VerificationCase,
+    linear_validity_check,
+    on_limit,
+)
+from reportgen.calc.hookspecs import API_VERSION, hookimpl
+from reportgen.errors import JobError, PluginError, RenderError, ReportgenError, VerificationError
+from reportgen.model import (
     Assumptions,
     Band,
     Caution,
@@ -18,6 +31,7 @@ from .model import (
     Figure,
     InputsTable,
     Marker,
+    Matrix,
     Note,
     Panel,
     Paragraph,
@@ -31,15 +45,11 @@ from .model import (
     VerificationRow,
 )
 
-try:
-    __version__ = _metadata.version("reportgen")
-except _metadata.PackageNotFoundError:  # running from a source tree
-    __version__ = "0.0.0+source"
-
 __all__ = [
     "API_VERSION", "Assumptions", "Band", "CalcContext", "CalcOutput", "CalcType", "Caution",
-    "Check", "Equation", "Figure", "InputSpec", "InputsTable", "JobError", "Marker", "Note",
-    "Panel", "Paragraph", "PluginError", "Quantity", "Reference", "RenderError",
-    "ReportgenError", "ResultRow", "ResultsTable", "Series", "Sheet", "Source", "Table",
-    "VerificationCase", "VerificationError", "VerificationRow", "hookimpl",
+    "Check", "Column", "DataFile", "Equation", "Figure", "InputSpec", "InputsTable",
+    "JobError", "Marker", "Matrix", "Note", "Panel", "Paragraph", "PluginError", "Quantity",
+    "Reference", "RenderError", "ReportgenError", "ResultRow", "ResultsTable", "Series",
+    "Sheet", "Source", "Table", "VerificationCase", "VerificationError", "VerificationRow",
+    "__version__", "hookimpl", "linear_validity_check", "on_limit",
 ]

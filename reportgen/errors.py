@@ -91,3 +91,12 @@ class RenderError(ReportgenError):
     """Rendering or the self-check of the written PDF failed; nothing was written."""
 
     exit_code = ExitCode.FAILURE
+
+
+def error_text(exc: BaseException) -> str:
+    """The message of an error as the command line shows it (one line a problem)."""
+    if isinstance(exc, JobError):
+        return "\n".join(str(p).lstrip(": ") for p in exc.problems)
+    if isinstance(exc, ReportgenError):
+        return str(exc)
+    return f"internal error: {type(exc).__name__}: {exc}"

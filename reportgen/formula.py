@@ -12,11 +12,12 @@ import ast
 import math
 from collections.abc import Callable, Mapping
 from functools import lru_cache
+from typing import Any
 
-from .units import format_number
+from reportgen.units import format_number
 
-__all__ = ["FormulaError", "evaluate", "is_scientific", "names_in", "number_latex",
-           "symbol_latex", "to_latex"]
+__all__ = ["FormulaError", "evaluate", "evaluate_array", "is_scientific", "names_in",
+           "number_latex", "symbol_latex", "to_latex"]
 
 CONSTANTS = {"pi": math.pi}
 FUNCTIONS: dict[str, Callable[..., float]] = {
@@ -121,6 +122,59 @@ def _sum(a: float, b: float) -> float:
     if abs(total) <= ROUNDOFF_ULPS * math.ulp(max(abs(a), abs(b))):
         return 0.0
     return total
+
+
+_ARRAY_FUNCTIONS = {
+    "sqrt": "sqrt", "exp": "exp", "ln": "log", "log10": "log10", "sin": "sin", "cos": "cos",
+    "tan": "tan", "atan": "arctan", "atan2": "arctan2", "abs": "abs", "sinh": "sinh",
+    "cosh": "cosh", "min": "minimum", "max": "maximum", "acos": "arccos", "asin": "arcsin",
+}
+
+
+def evaluate_array(expression: str, operands: Mapping[str, Any]) -> Any:
+    """Evaluate ``expression`` elementwise over numpy arrays (operands broadcast), so the
+    one expression that is printed also draws the curve a figure plots. Values outside
+    a function's domain become NaN rather than an error (a curve may cross them)."""
+    import numpy as np
+
+    tree = _parse(expression)
+
+    def ev(node: ast.expr) -> Any:
+        if isinstance(node, ast.Constant):
+            return float(node.value)  # type: ignore[arg-type]  # _parse admits numbers only
+        if isinstance(node, ast.Name):
+            if node.id in operands:
+                return np.asarray(operands[node.id], dtype=float)
+            if node.id in CONSTANTS:
+                return CONSTANTS[node.id]
+            raise FormulaError(f"formula {expression!r} needs operand {node.id!r}")
+        if isinstance(node, ast.UnaryOp):
+            v = ev(node.operand)
+            return -v if isinstance(node.op, ast.USub) else v
+        if isinstance(node, ast.BinOp):
+            a, b = ev(node.left), ev(node.right)
+            op = node.op
+            if isinstance(op, ast.Add):
+                return a + b
+            if isinstance(op, ast.Sub):
+                return a - b
+            if isinstance(op, ast.Mult):
+                return a * b
+            if isinstance(op, ast.Div):
+                return np.divide(a, b)
+            return np.power(a, b)
+        assert isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
+        fn = getattr(np, _ARRAY_FUNCTIONS[node.func.id])
+        args = [ev(a) for a in node.args]
+        if node.func.id in ("min", "max") and len(args) > 2:
+            out = args[0]
+            for a in args[1:]:
+                out = fn(out, a)
+            return out
+        return fn(*args)
+
+    with np.errstate(all="ignore"):
+        return ev(tree)
 
 
 def symbol_latex(name: str) -> str:

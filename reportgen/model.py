@@ -33,8 +33,9 @@ class InputRow:
     name: str
     symbol: str  # LaTeX-free plain symbol text, e.g. "m", "ζ"
     description: str
-    quantity: Quantity
+    quantity: Quantity | None  # None: a text value (a choice, a file), in ``text``
     source: str  # "job file", "default", "derived" ...
+    text: str = ""
 
 
 @dataclass(**_frozen)
@@ -160,13 +161,49 @@ class Caution:
     text: str
 
 
+Cell = str | float | int | Quantity | None
+
+
 @dataclass(**_frozen)
 class Table:
-    """A plain table of text cells (for example the mount-load table)."""
+    """A table of cells (for example the mount-load table).
+
+    A cell is text, or a number: with ``units`` (one dimension name per column, "" for a
+    text column) a number is an SI value that the renderer shows in the package's display
+    unit of that column, named in the column's header; a :class:`Quantity` cell carries
+    its own dimension and is shown with its unit. None is an empty cell. Plugins never
+    format units themselves.
+    """
 
     title: str
     header: tuple[str, ...]
-    rows: tuple[tuple[str, ...], ...]
+    rows: tuple[tuple[Cell, ...], ...]
+    units: tuple[str, ...] = ()
+    digits: int = 4
+
+
+@dataclass(**_frozen)
+class Matrix:
+    """A matrix (a stiffness or mass matrix, mode shapes) with labelled rows and columns.
+
+    ``values`` are SI; ``dimensions`` gives each entry's dimension name (rows of names),
+    or one row of names applying to every row (by column), or is empty (dimensionless).
+    """
+
+    title: str
+    symbol: str
+    values: tuple[tuple[float, ...], ...]
+    row_labels: tuple[str, ...] = ()
+    column_labels: tuple[str, ...] = ()
+    dimensions: tuple[tuple[str, ...], ...] = ()
+    caption: str = ""
+    digits: int = 4
+
+    def dimension(self, i: int, j: int) -> str:
+        if not self.dimensions:
+            return "dimensionless"
+        row = self.dimensions[i] if len(self.dimensions) > 1 else self.dimensions[0]
+        return row[j]
 
 
 @dataclass(**_frozen)
@@ -175,10 +212,10 @@ class Reference:
 
 
 Block = (InputsTable | Assumptions | Equation | ResultsTable | Check | Figure | Paragraph
-         | Note | Caution | Table | Reference)
+         | Note | Caution | Table | Matrix | Reference)
 BLOCK_TYPES: tuple[type, ...] = (
     InputsTable, Assumptions, Equation, ResultsTable, Check, Figure, Paragraph, Note,
-    Caution, Table, Reference,
+    Caution, Table, Matrix, Reference,
 )
 
 

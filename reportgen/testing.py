@@ -21,13 +21,14 @@ from typing import Any
 
 import pytest
 
-from .build import compute_document
-from .calc import CalcOutput, CalcType
-from .formula import evaluate, names_in
-from .jobfile import Job, load_job
-from .model import Document, Equation, Section
-from .plugins import PluginSet, get_plugin_manager
-from .units import DIMENSIONS, format_number
+from reportgen.calc.plugin_set import PluginSet, load_plugin_set
+from reportgen.calc.sheet import CalcOutput
+from reportgen.calc.types import CalcType
+from reportgen.document.compute import compute_document
+from reportgen.formula import evaluate, names_in
+from reportgen.job.load import Job, load_job
+from reportgen.model import Document, Equation, Section
+from reportgen.units import DIMENSIONS, format_number
 
 __all__ = [
     "Built", "assert_calc_contract", "assert_equations_reproduce", "build_package",
@@ -115,7 +116,7 @@ def compute(job: Mapping[str, Any], plugins: PluginSet | None = None,
     """Load and compute a job dict (no rendering); returns the Document."""
     import tempfile
 
-    plugins = plugins or get_plugin_manager()
+    plugins = plugins or load_plugin_set()
     if folder is None:
         with tempfile.TemporaryDirectory() as tmp:
             return compute_document(load_job_dict(job, plugins, Path(tmp)), plugins)
@@ -163,7 +164,7 @@ class Built:
         return {k: v["value"] for k, v in c["results"].items()}
 
     def text(self) -> str:
-        from .selfcheck import extract_text
+        from reportgen.render.selfcheck import extract_text
 
         return extract_text(self.pdf.read_bytes())[1]
 
@@ -171,9 +172,9 @@ class Built:
 def build_package(job: Mapping[str, Any], folder: Path, *, plugins: PluginSet | None = None,
                   html: bool = True, **options: Any) -> Built:
     """Build a job dict into ``folder`` (job.toml, out/...) through the real pipeline."""
-    from .pipeline import BuildOptions, build_job
+    from reportgen.pipeline.plan import BuildOptions, build_job
 
-    plugins = plugins or get_plugin_manager()
+    plugins = plugins or load_plugin_set()
     folder.mkdir(parents=True, exist_ok=True)
     path = folder / "job.toml"
     path.write_text(job_toml(job), encoding="utf-8")
@@ -237,15 +238,15 @@ def assert_calc_contract(calc_type: CalcType, job_calc: Mapping[str, Any], folde
         assert spec.description, f"{spec.name}: no description"
     assert calc_type.sources, f"{calc_type.name} declares no published sources"
     job = make_job([{**job_calc, "plugin": calc_type.name}])
-    plugins = plugins or get_plugin_manager()
+    plugins = plugins or load_plugin_set()
     doc = compute(job, plugins, folder)
     section = doc.sections[0]
     assert section.results, "no results"
     assert assert_equations_reproduce(doc) > 0, "no equations"
     assert section.verification is not None, f"{calc_type.name} provides no verification"
     assert all(v.agrees for v in section.verification)
-    from .render.assets import render_assets
-    from .render.html import render_html
+    from reportgen.render.assets import render_assets
+    from reportgen.render.html import render_html
 
     html = render_html(doc, render_assets(doc, use_cache=False))
     assert section.title in html
@@ -263,7 +264,7 @@ def assert_calc_contract(calc_type: CalcType, job_calc: Mapping[str, Any], folde
 @pytest.fixture
 def rg_plugins() -> PluginSet:
     """The installed plugin set, loaded fresh for the test."""
-    return get_plugin_manager()
+    return load_plugin_set()
 
 
 @pytest.fixture

@@ -60,6 +60,20 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("angle", "rad", "rad", "deg", "°", "deg", ""),
         Dimension("mass_length", "kg*m", "kg·m", "lb*in", "lb·in", "kg*m or g*mm",
                   "[length] * [mass]"),
+        Dimension("moment", "N*m", "N·m", "lbf*in", "lbf·in", "kN*m",
+                  "[length] ** 2 * [mass] / [time] ** 2"),
+        Dimension("rotational_stiffness", "N*m/rad", "N·m/rad", "lbf*in/rad", "lbf·in/rad",
+                  "kN*m/rad", "[length] ** 2 * [mass] / [time] ** 2"),
+        Dimension("moment_of_inertia", "kg*m**2", "kg·m²", "lb*in**2", "lb·in²", "kg*m**2",
+                  "[length] ** 2 * [mass]"),
+        Dimension("pressure", "Pa", "Pa", "psi", "psi", "kPa", "[mass] / [length] / [time] ** 2"),
+        Dimension("density", "kg/m**3", "kg/m³", "lb/ft**3", "lb/ft³", "kg/m**3",
+                  "[mass] / [length] ** 3"),
+        Dimension("area", "m**2", "m²", "in**2", "in²", "m**2", "[length] ** 2"),
+        Dimension("second_moment_of_area", "m**4", "m⁴", "in**4", "in⁴", "mm**4",
+                  "[length] ** 4"),
+        Dimension("force_per_length", "N/m", "N/m", "lbf/ft", "lbf/ft", "kN/m",
+                  "[mass] / [time] ** 2"),
     )
 }
 
@@ -86,7 +100,7 @@ def _registry():  # pint is imported lazily: start-up stays fast
     # pint's own parse of its definitions file (~0.2 s) is cached beside reportgen's
     # caches; flexcache keys it by the file's content. Any problem: parse afresh.
     try:
-        from .cache import default_cache_dir
+        from reportgen.store import default_cache_dir
 
         folder = default_cache_dir() / "pint"
         folder.mkdir(parents=True, exist_ok=True)

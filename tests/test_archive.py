@@ -20,11 +20,11 @@ import pikepdf
 import pytest
 from conftest import assert_case
 
-from reportgen import archive
+from reportgen.calc.plugin_set import load_plugins
 from reportgen.cli import main
-from reportgen.commands import load_plugins
 from reportgen.errors import JobError
-from reportgen.jobfile import load_job
+from reportgen.job.load import load_job
+from reportgen.package import archive
 
 REPO = Path(__file__).resolve().parent.parent
 SAMPLE_B = REPO / "sample_jobs" / "qep-101-pump-p1.toml"
@@ -76,7 +76,7 @@ def work(tmp_path_factory) -> Path:
 
 @pytest.fixture(scope="module")
 def rev_a(work: Path) -> Path:
-    from reportgen.pipeline import BuildOptions, build_job
+    from reportgen.pipeline.plan import BuildOptions, build_job
 
     result = build_job(work / "a" / SAMPLE_A.name, load_plugins(),
                        BuildOptions(out_dir=work / "jobs" / "prev", cache_dir=work / "cache-a",
@@ -431,7 +431,8 @@ def _job_variant(tmp: Path, name: str, source: Path, replace: dict[str, str]) ->
 
 
 def test_diff_compares_inputs_results_and_flipped_checks(tmp_path, check_cases):
-    from reportgen.diff import compare, load_side
+    from reportgen.package.compare import compare
+    from reportgen.package.revisions import load_side
 
     case = check_cases["A1_sdof_free_underdamped"]  # invented example, textbook formulas
     inputs = {'mass = "1200 kg"': 'mass = "50 kg"', 'stiffness = "350 kN/m"':
@@ -488,7 +489,7 @@ def test_diff_invalid_input_exits_2(tmp_path, capsys):
     ('["big.csv"]', "the limit for one attachment"),
 ])
 def test_attachments_are_validated_strictly(tmp_path, monkeypatch, listed, expect):
-    from reportgen import jobfile
+    from reportgen.job import load as jobfile
 
     monkeypatch.setattr(jobfile, "MAX_ATTACHMENT_BYTES", 1000)
     folder = tmp_path / "job"

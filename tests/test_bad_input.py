@@ -16,7 +16,7 @@ from pathlib import Path
 import pytest
 
 from reportgen.cli import main
-from reportgen.jobfile import MAX_CALCS, MAX_JOB_BYTES
+from reportgen.job.load import MAX_CALCS, MAX_JOB_BYTES
 
 REPO = Path(__file__).resolve().parent.parent
 
@@ -315,9 +315,9 @@ def test_problems_in_two_calcs_are_all_reported(tmp_path, capsys):
 
 
 def _forced_response_inputs() -> set[str]:
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
 
-    reg = get_plugin_manager().get("forced_response")
+    reg = load_plugin_set().get("forced_response")
     return set() if reg is None else {s.name for s in reg.calc_type.inputs}
 
 
@@ -420,9 +420,9 @@ def test_schema_is_valid_json_schema_and_accepts_the_sample_jobs(capsys):
     validator = jsonschema.Draft202012Validator(schema)
     samples = sorted((REPO / "sample_jobs").glob("*.toml"))
     assert samples
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
 
-    known = set(get_plugin_manager().names())
+    known = set(load_plugin_set().names())
     for sample in samples:
         data = tomllib.loads(sample.read_text(encoding="utf-8"))
         if not {c.get("plugin") for c in data.get("calc", [])} <= known:
@@ -443,10 +443,10 @@ def test_schema_rejects_what_check_rejects(capsys):
 
 
 def test_schema_lists_every_installed_calc_type_and_its_inputs(capsys):
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
 
     schema = _schema(capsys)
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     calc = schema["properties"]["calc"]["items"]
     assert sorted(calc["properties"]["plugin"]["enum"]) == plugins.names()
     text = json.dumps(schema)

@@ -12,10 +12,10 @@ from pathlib import Path
 import pytest
 
 from reportgen import CalcType, InputSpec, Sheet, VerificationRow, hookimpl
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.errors import RenderError
-from reportgen.plugins import get_plugin_manager
-from reportgen.selfcheck import self_check
+from reportgen.render.selfcheck import self_check
 from reportgen.testing import build_package, compute, job_toml, make_job
 
 TESTS = Path(__file__).resolve().parent
@@ -103,7 +103,7 @@ class _NoVerify(_OffByOne):
 def _test_plugins():
     module = types.SimpleNamespace(
         reportgen_register_calc_types=hookimpl(lambda: [_OffByOne(), _NoVerify()]))
-    return get_plugin_manager(extra=[("test_plugins", module)])
+    return load_plugin_set(extra=[("test_plugins", module)])
 
 
 def test_disagreeing_verification_is_exit_3_and_writes_nothing(tmp_path):
@@ -205,7 +205,7 @@ def test_folder_build_writes_register(tmp_path, capsys):
         assert row["checks_failed"] == data["package"]["checks_failed"]
         assert row["review_state"] == "preliminary"
     assert rows["T-1-002"]["status"] == "fail" and rows["T-1-001"]["status"] == "pass"
-    from reportgen.selfcheck import extract_text
+    from reportgen.render.selfcheck import extract_text
 
     text = extract_text((out / "register.pdf").read_bytes())[1]
     assert "T-1-001" in text and "T-1-002" in text and "FAIL" in text
@@ -215,7 +215,7 @@ def test_folder_build_writes_register(tmp_path, capsys):
 
 
 def test_every_declared_verification_case_is_exercised_by_the_plugin_tests():
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     for name, reg in plugins.calcs.items():
         if reg.package != "reportgen":
             continue

@@ -85,7 +85,7 @@ def test_build_one_job_writes_pdf_and_results(tmp_path, capsys):
 
 
 def test_internal_errors_never_show_a_traceback_without_debug(tmp_path, capsys, monkeypatch):
-    import reportgen.commands as commands
+    import reportgen.cli.commands as commands
 
     def boom(*_a, **_k):
         raise RuntimeError("simulated bug")

@@ -114,7 +114,7 @@ def test_wheel_package_data_covers_the_theme():
 
 
 def test_logo_is_self_contained_vector():
-    from reportgen.templates import firm_logo
+    from reportgen.render.logo import firm_logo
 
     svg = (THEME / "logo.svg").read_text(encoding="utf-8")
     assert "<image" not in svg and "href" not in svg and "<script" not in svg

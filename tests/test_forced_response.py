@@ -18,10 +18,10 @@ from scipy.integrate import solve_ivp
 from scipy.optimize import minimize_scalar
 
 from reportgen import Caution, Equation, Figure, InputsTable, JobError, Note, Paragraph
-from reportgen.build import compute_document
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
-from reportgen.jobfile import load_job
-from reportgen.plugins import get_plugin_manager
+from reportgen.document.compute import compute_document
+from reportgen.job.load import load_job
 from reportgen.testing import (
     assert_calc_contract,
     compute,
@@ -273,8 +273,8 @@ def test_verification_rows_agree_for_every_excitation(inputs):
 def test_verification_catches_a_wrong_closed_form(check_cases, tmp_path):
     # A verifier that cannot fail proves nothing: a 0.1 % error in X must be caught.
     case = check_cases["B1_forced_applied_force"]
-    plugins = get_plugin_manager()
-    from reportgen.build import calc_context
+    plugins = load_plugin_set()
+    from reportgen.document.compute import calc_context
     from reportgen.testing import load_job_dict
 
     job = load_job_dict(make_job([_calc(_b1_inputs(case))]), plugins, tmp_path)
@@ -506,7 +506,7 @@ def test_no_start_up_caution_below_resonance():
 def test_fan_sf2_at_980_rpm_against_hand_formulas():
     # sample_jobs/qep-102: the hand formulas of Thomson & Dahleh Ch. 3 for rotating unbalance,
     # written out here from the job's inputs.
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     doc = compute_document(load_job(SAMPLES / "qep-102-fan-sf2.toml", plugins), plugins)
     r = _results(doc)
     m, k, zeta, u = 850.0, 330e3, 0.02, 0.0075

@@ -18,9 +18,9 @@ from pathlib import Path
 import pikepdf
 import pytest
 
-from reportgen import archive
+from reportgen.calc.plugin_set import load_plugins
 from reportgen.cli import main
-from reportgen.commands import load_plugins
+from reportgen.package import archive
 
 REPO = Path(__file__).resolve().parent.parent
 README_JOB = """\
@@ -58,7 +58,7 @@ READINGS = b"point,f_Hz\nP1-N,24.8\n"  # invented readings
 
 @pytest.fixture(scope="module")
 def package(tmp_path_factory) -> Path:
-    from reportgen.pipeline import BuildOptions, build_job
+    from reportgen.pipeline.plan import BuildOptions, build_job
 
     root = tmp_path_factory.mktemp("harden-archive")
     (root / "job.toml").write_text(README_JOB, encoding="utf-8")
@@ -363,7 +363,7 @@ def test_the_lock_ignores_the_working_folder_and_the_process(tmp_path):
     (tmp_path / "stray_dist-9.9.dist-info").mkdir()
     (tmp_path / "stray_dist-9.9.dist-info" / "METADATA").write_text(
         "Metadata-Version: 2.1\nName: stray-dist\nVersion: 9.9\n")
-    code = "import sys; from reportgen.archive import environment_lock;" \
+    code = "import sys; from reportgen.package.archive import environment_lock;" \
            " sys.stdout.buffer.write(environment_lock())"
     run = subprocess.run([sys.executable, "-c", code], cwd=tmp_path, capture_output=True,
                          check=True, timeout=60)

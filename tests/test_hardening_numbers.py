@@ -14,16 +14,16 @@ from hardening_d_support import job_text, run, write_job
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from reportgen.build import compute_document
+from reportgen.calc.plugin_set import load_plugin_set
+from reportgen.document.compute import compute_document
 from reportgen.errors import JobError
 from reportgen.formula import to_latex
-from reportgen.jobfile import load_job
+from reportgen.job.load import load_job
 from reportgen.model import Equation, Quantity
-from reportgen.plugins import get_plugin_manager
 from reportgen.render.math import equation_latex
 from reportgen.render.mathsvg import latex_svg
 
-PLUGINS = get_plugin_manager()
+PLUGINS = load_plugin_set()
 
 BASE = {
     "isolation": {"mass": "1200 kg", "speed": "1480 rpm", "stiffness": "700 kN/m"},
@@ -216,7 +216,7 @@ def test_isolation_at_exactly_root_two(tmp_path, fn, zeta):
 
 
 def test_on_limit_rule_for_every_comparison():
-    from reportgen.calc import Sheet
+    from reportgen.calc.sheet import Sheet
 
     s = Sheet()
     limit = math.sqrt(2)

@@ -23,8 +23,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from reportgen.cli import main
-from reportgen.jobfile import file_stem
-from reportgen.outputs import JOURNAL_SUFFIX, commit_outputs, recover
+from reportgen.job.load import file_stem
+from reportgen.pipeline.commit import JOURNAL_SUFFIX, commit_outputs, recover
 
 # -------------------------------------------------------------------- the file-name rule
 
@@ -75,7 +75,7 @@ def test_a_folder_build_refuses_jobs_that_share_a_file_name(second, tmp_path, ca
 KILL_AFTER_FIRST_RENAME = r"""
 import os, signal, sys
 from pathlib import Path
-from reportgen import outputs
+from reportgen.pipeline import commit as outputs
 
 out = Path(sys.argv[1])
 real = os.replace
@@ -167,7 +167,8 @@ def test_a_real_build_killed_between_renames_is_completed_by_verify(tmp_path):
     assert main(["build", str(job), "--out", str(out)]) in (0, 1)
     old_pdf = (out / "QEP-2417-V-301-A.pdf").read_bytes()
     job.write_text(job_text(mass=1500), encoding="utf-8")  # revision A, other numbers
-    kill = ("import os, signal, sys\nfrom reportgen import outputs\nreal = os.replace\n"
+    kill = ("import os, signal, sys\nfrom reportgen.pipeline import commit as outputs\n"
+            "real = os.replace\n"
             "def replace(src, dst, *a, **k):\n    real(src, dst, *a, **k)\n"
             "    if str(dst).endswith('.results.json'):\n"
             "        os.kill(os.getpid(), signal.SIGKILL)\n"
@@ -203,7 +204,7 @@ def test_force_with_the_pdf_path_a_folder_writes_nothing(tmp_path, capsys):
 
 def test_the_existence_check_is_made_again_just_before_the_commit(tmp_path, monkeypatch,
                                                                   capsys):
-    from reportgen import pipeline
+    from reportgen.pipeline import plan as pipeline
 
     job = tmp_path / "job.toml"
     job.write_text(job_text(), encoding="utf-8")

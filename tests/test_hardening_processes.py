@@ -92,7 +92,7 @@ def test_sigkill_of_the_command_leaves_no_process_and_no_late_write(mode, seed, 
     assert not left, f"{len(left)} processes outlived the command by 2 s (kill at {delay:.2f} s)"
     time.sleep(SETTLE)
     assert snapshot(out) == killed, "the output folder changed after the command was killed"
-    from reportgen.outputs import recover
+    from reportgen.pipeline.commit import recover
 
     recover(out)  # what the next build or verify does with a commit cut short
     assert_not_torn(out)
@@ -288,7 +288,7 @@ def test_dask_scheduler_in_another_folder_with_relative_paths(tmp_path):
 
 WATCHED_CHILD = r"""
 import os, sys, time
-from reportgen import lifeline
+from reportgen.pipeline import lifeline
 
 lifeline._set_death_signal = lambda: False  # as where the kernel has no death signal
 parent = os.getpid()

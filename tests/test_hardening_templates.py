@@ -105,7 +105,7 @@ def test_a_template_reaching_for_the_interpreter_exits_2_naming_file_and_line(
 
 
 def test_a_sandbox_refusal_raised_in_the_split_child_comes_back_as_exit_2(tmp_path):
-    # a real process: the build forks (reportgen.split) and the error crosses the pipe
+    # a real process: the build forks (the pipeline scheduler) and the error crosses the pipe
     root = tmp_path / "job"
     _theme(root / "theme", {"cover.html": '{{ cycler.__init__.__globals__.os.popen("id")'
                                           '.read() }}\n' + COVER_BODY})
@@ -303,7 +303,7 @@ def test_command_line_template_dir_may_be_anywhere_and_a_clean_utf16_logo_render
     code, err = _build(job, out, capsys, "--template-dir", str(theme.resolve()))
     assert code == 0, err
     pdf = out / "T-1-001-A.pdf"
-    from reportgen.selfcheck import extract_text
+    from reportgen.render.selfcheck import extract_text
 
     _, text = extract_text(pdf.read_bytes())
     assert "Ashgrove form V-7" in text  # the firm's stylesheet applied
@@ -403,7 +403,7 @@ def test_a_clean_png_logo_is_accepted():
     import base64
     import tempfile
 
-    from reportgen.templates import firm_logo
+    from reportgen.render.logo import firm_logo
 
     with tempfile.TemporaryDirectory() as folder:
         (Path(folder) / "logo.png").write_bytes(_png(8, 8))
@@ -414,7 +414,7 @@ def test_a_clean_png_logo_is_accepted():
 def test_the_sample_theme_logo_passes_the_screen_byte_for_byte():
     import base64
 
-    from reportgen.templates import firm_logo
+    from reportgen.render.logo import firm_logo
 
     theme = REPO / "sample_jobs" / "quillmoor_theme"
     uri = firm_logo(theme)
@@ -470,12 +470,12 @@ def _with_page_attachment(src: Path, dest: Path, data: bytes) -> None:
 
 @pytest.fixture(scope="module")
 def plain_package(tmp_path_factory):
-    from reportgen.pipeline import BuildOptions, build_job
-    from reportgen.plugins import get_plugin_manager
+    from reportgen.calc.plugin_set import load_plugin_set
+    from reportgen.pipeline.plan import BuildOptions, build_job
 
     root = tmp_path_factory.mktemp("plain")
     job = _job(root / "job")
-    result = build_job(job, get_plugin_manager(),
+    result = build_job(job, load_plugin_set(),
                        BuildOptions(out_dir=root / "out", use_cache=False, workers=1))
     return result.pdf
 
@@ -483,7 +483,7 @@ def plain_package(tmp_path_factory):
 def test_the_self_check_refuses_a_pdf_whose_embedded_files_differ_from_the_manifest(
         plain_package, tmp_path):
     from reportgen.errors import RenderError
-    from reportgen.selfcheck import self_check
+    from reportgen.render.selfcheck import self_check
     from reportgen.testing import compute
 
     doc = compute(make_job(PUMP))
@@ -515,14 +515,14 @@ def test_verify_and_extract_see_a_file_attached_to_a_page(plain_package, tmp_pat
     "x\x1b.csv", "x\x7f", "file:///etc/passwd", 5, None, ["a"],
 ])
 def test_path_parts_refuses_what_leaves_the_folder(text):
-    from reportgen.safepath import UnsafePath, path_parts
+    from reportgen.job.paths import UnsafePath, path_parts
 
     with pytest.raises(UnsafePath):
         path_parts(text)
 
 
 def test_path_parts_accepts_plain_relative_names():
-    from reportgen.safepath import path_parts
+    from reportgen.job.paths import path_parts
 
     assert path_parts("survey/p1 readings.csv") == ("survey", "p1 readings.csv")
     assert path_parts("sub\\x.csv") == ("sub", "x.csv")
@@ -531,7 +531,7 @@ def test_path_parts_accepts_plain_relative_names():
 
 def test_job_relative_path_checks_type_and_never_blocks_on_a_fifo(tmp_path):
     from reportgen.errors import JobError
-    from reportgen.safepath import job_relative_path, read_job_file
+    from reportgen.job.paths import job_relative_path, read_job_file
 
     (tmp_path / "d").mkdir()
     (tmp_path / "f.csv").write_text("1\n")

@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 from hardening_d_support import FREE, free_calc, job_text, run, write_job
 
-from reportgen.jobfile import MAX_DEPTH, text_problem
+from reportgen.job.load import MAX_DEPTH, text_problem
 
 # Characters XML 1.0 (and so XMP) cannot carry, or that display text in another order.
 BAD_CHARS = {
@@ -193,11 +193,11 @@ def test_right_to_left_and_ligature_titles_pass_the_self_check(tmp_path):
     both, and still refuses a title that is not on the page."""
     import dataclasses
 
-    from reportgen.build import compute_document
+    from reportgen.calc.plugin_set import load_plugin_set
+    from reportgen.document.compute import compute_document
     from reportgen.errors import RenderError
-    from reportgen.jobfile import load_job
-    from reportgen.plugins import get_plugin_manager
-    from reportgen.selfcheck import self_check
+    from reportgen.job.load import load_job
+    from reportgen.render.selfcheck import self_check
 
     calcs = [{**FREE, "id": f"calc-{i}", "title": t} for i, t in enumerate(SCRIPT_TITLES)]
     path = write_job(tmp_path, job_text(calcs=calcs))
@@ -205,7 +205,7 @@ def test_right_to_left_and_ligature_titles_pass_the_self_check(tmp_path):
     code, _, err = run(["build", str(path), "--out", str(out), "--jobs", "1"])
     assert code == 0, err
     pdf = (out / "QEP-2417-V-301-A.pdf").read_bytes()
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     doc = compute_document(load_job(path, plugins), plugins)
     self_check(pdf, doc)
     for wrong in ("משאבה P2 על קפיצים", "مضخة P1 على نوابص", "Pump ﬁve ﬂows"):
@@ -216,7 +216,7 @@ def test_right_to_left_and_ligature_titles_pass_the_self_check(tmp_path):
 
 
 def test_shown_rule():
-    from reportgen.selfcheck import shown
+    from reportgen.render.selfcheck import shown
 
     page = "Contents1Pumpא בלש2הבאשמP1םיציפקלע".replace(" ", "")
     assert shown(page, "Pumpשלבא")

@@ -19,10 +19,10 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.errors import JobError, RenderError, ThemeError
-from reportgen.jobfile import load_job
-from reportgen.plugins import get_plugin_manager
+from reportgen.job.load import load_job
 
 PASSWD = Path("/etc/passwd")
 
@@ -251,7 +251,7 @@ def test_job_text_is_escaped_and_reads_nothing(tmp_path, no_network, opened, cap
 
 
 def test_svg_logo_that_reads_a_file_is_refused(tmp_path, capsys):
-    from reportgen.templates import firm_logo
+    from reportgen.render.logo import firm_logo
 
     firm = tmp_path / "firm"
     firm.mkdir()
@@ -273,7 +273,7 @@ def test_svg_logo_that_reads_a_file_is_refused(tmp_path, capsys):
     '<svg><a href="&#102;ile:///etc/passwd"><rect/></a></svg>',
 ])
 def test_svg_logo_variants_are_refused(svg, tmp_path):
-    from reportgen.templates import firm_logo
+    from reportgen.render.logo import firm_logo
 
     (tmp_path / "logo.svg").write_text(svg)
     with pytest.raises(ThemeError):
@@ -281,7 +281,7 @@ def test_svg_logo_variants_are_refused(svg, tmp_path):
 
 
 def test_clean_svg_logo_is_accepted(tmp_path):
-    from reportgen.templates import firm_logo
+    from reportgen.render.logo import firm_logo
 
     svg = ('<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg"'
            ' xmlns:xlink="http://www.w3.org/1999/xlink" viewBox="0 0 10 10"><defs>'
@@ -310,7 +310,7 @@ def test_build_with_hostile_logo_fails_and_writes_nothing(tmp_path, no_network, 
 
 # ---------------------------------------------------------------- random documents
 
-PLUGINS = get_plugin_manager()
+PLUGINS = load_plugin_set()
 _INPUT_NAMES = sorted({s.name for n in PLUGINS.names() for s in
                        PLUGINS.get(n).calc_type.inputs + PLUGINS.get(n).calc_type.criteria})
 _UNITS = ["kg", "g", "lb", "N/m", "kN/m", "lbf/in", "N*s/m", "m", "mm", "in", "s", "ms", "h",

@@ -15,7 +15,7 @@ from pathlib import Path
 import pytest
 
 from reportgen.cli import main
-from reportgen.pipeline import STALE_PART_SECONDS, sweep_stale_parts
+from reportgen.pipeline.commit import STALE_PART_SECONDS, sweep_stale_parts
 
 STEM = "QEP-2417-V-192-A"
 

@@ -26,9 +26,9 @@ from scipy import signal
 from scipy.optimize import minimize_scalar
 
 from reportgen import Caution, Figure, JobError, Table
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
-from reportgen.jobfile import load_job
-from reportgen.plugins import get_plugin_manager
+from reportgen.job.load import load_job
 from reportgen.testing import (
     assert_calc_contract,
     assert_equations_reproduce,
@@ -443,7 +443,7 @@ def test_bad_input_names_the_field(tmp_path, inputs, field, words):
     path = tmp_path / "job.toml"
     path.write_text(job_toml(make_job([_calc(inputs)])), encoding="utf-8")
     with pytest.raises(JobError) as err:
-        load_job(path, get_plugin_manager())
+        load_job(path, load_plugin_set())
     problems = [p for p in err.value.problems if p.field == field]
     assert problems, [str(p) for p in err.value.problems]
     assert words in problems[0].message and problems[0].calc == "calc-1"
@@ -529,7 +529,7 @@ def test_sample_jobs_build(tmp_path, capsys, name, code):
     calc = data["calcs"][0]
     assert ISSUE_KEYS <= set(calc["results"])
     status = {c["id"]: c["status"] for c in calc["checks"]}
-    from reportgen.selfcheck import extract_text
+    from reportgen.render.selfcheck import extract_text
 
     text = extract_text(pdf.read_bytes())[1]
     assert "Mount loads, static deflections and natural frequencies" in text

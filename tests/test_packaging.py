@@ -20,9 +20,9 @@ from pathlib import Path
 
 import pytest
 
-from reportgen import cache as rg_cache
+from reportgen import store as rg_cache
+from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
-from reportgen.plugins import get_plugin_manager
 
 REPO = Path(__file__).resolve().parent.parent
 FIXTURES = Path(__file__).resolve().parent / "plugins"
@@ -60,7 +60,7 @@ def wheel(tmp_path_factory) -> tuple[Path, str]:
 def test_stale_build_folder_files_do_not_ship(wheel):
     path, _ = wheel
     names = zipfile.ZipFile(path).namelist()
-    assert "reportgen/cli.py" in names
+    assert "reportgen/cli/__init__.py" in names
     assert not [n for n in names if "stale_leftover" in n]
 
 
@@ -159,7 +159,7 @@ def _installed_fixture(tmp_path: Path, monkeypatch) -> Path:
 def test_a_disabled_plugin_is_never_imported(tmp_path, monkeypatch):
     mark = _installed_fixture(tmp_path, monkeypatch)
     monkeypatch.setenv("REPORTGEN_PLUGINS_DISABLE", "other, side_effect")
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     assert not mark.exists(), "the disabled plugin's module was imported"
     assert "import_side_effect" not in sys.modules
     assert "free_vibration" in plugins.calcs  # the others still load
@@ -170,7 +170,7 @@ def test_an_enabled_fixture_plugin_is_imported(tmp_path, monkeypatch):
     # the control: without the variable the same fixture is imported and registered
     mark = _installed_fixture(tmp_path, monkeypatch)
     monkeypatch.delenv("REPORTGEN_PLUGINS_DISABLE", raising=False)
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     assert mark.read_text() == "imported\n"
     assert plugins.packages["side_effect"] == ("rg-side-effect", "0.1")
     sys.modules.pop("import_side_effect", None)
@@ -218,9 +218,9 @@ def test_prune_deletes_least_recently_used_down_to_80_percent(tmp_path):
 def test_a_cache_hit_marks_the_entry_as_used(tmp_path):
     import hashlib
 
-    from reportgen.render.assets import AssetCache
+    from reportgen.store import Store
 
-    c = AssetCache(tmp_path)
+    c = Store(tmp_path, ".svg")
     key = hashlib.sha256(b"k").hexdigest()
     c.put(key, b"<svg/>")
     path = tmp_path / key[:2] / f"{key}.svg"

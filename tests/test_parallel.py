@@ -56,7 +56,7 @@ def test_run_on_dask_reports_outcomes_in_order_and_failures(tmp_path):
     pytest.importorskip("dask.distributed")
     from dask.distributed import Client, LocalCluster
 
-    from reportgen.calcset import run_tasks
+    from reportgen.pipeline.sets import run_tasks
 
     seen = []
     with LocalCluster(n_workers=1, threads_per_worker=2, processes=False,
@@ -76,22 +76,23 @@ def _outcome(i: int) -> dict:
 
 
 def test_parallel_asset_pool_draws_what_the_serial_path_draws(tmp_path):
-    from reportgen.build import compute_document
-    from reportgen.commands import load_plugins
-    from reportgen.jobfile import load_job
+    from reportgen.calc.plugin_set import load_plugins
+    from reportgen.document.compute import compute_document
+    from reportgen.job.load import load_job
+    from reportgen.pipeline.scheduler import Scheduler
     from reportgen.render.assets import render_assets
 
     plugins = load_plugins()
     doc = compute_document(load_job(REPO / "sample_jobs" / JOBS[1], plugins), plugins)
-    one = render_assets(doc, use_cache=False, workers=1)
-    two = render_assets(doc, use_cache=False, workers=2)
+    one = render_assets(doc, use_cache=False)
+    two = Scheduler(workers=2, use_cache=False).render_assets(doc)
     assert len(one) >= 6 and dict(one) == dict(two) and one.css == two.css
 
 
 def test_split_build_with_early_workers_matches_the_plain_in_process_build(tmp_path,
                                                                            monkeypatch):
-    from reportgen.commands import load_plugins
-    from reportgen.pipeline import BuildOptions, build_job
+    from reportgen.calc.plugin_set import load_plugins
+    from reportgen.pipeline.plan import BuildOptions, build_job
 
     job = REPO / "sample_jobs" / "qep-104-chiller-ch1.toml"
     plain = build_job(job, load_plugins(), BuildOptions(out_dir=tmp_path / "plain",

@@ -16,10 +16,11 @@ from pathlib import Path
 
 import pytest
 
-from reportgen import cli, hookspecs
-from reportgen.calc import CalcContext
+from reportgen import cli
+from reportgen.calc import hookspecs
+from reportgen.calc.plugin_set import load_plugin_set
+from reportgen.calc.sheet import CalcContext
 from reportgen.errors import ExitCode, JobError, PluginError, VerificationError
-from reportgen.plugins import get_plugin_manager
 from reportgen.testing import (
     assert_calc_contract,
     assert_equations_reproduce,
@@ -44,7 +45,7 @@ def load_fixture(name: str):
 
 
 def plugins_with(*names: str):
-    return get_plugin_manager(extra=[(n, load_fixture(n)) for n in names])
+    return load_plugin_set(extra=[(n, load_fixture(n)) for n in names])
 
 
 def calc_table(plugin: str, **inputs) -> dict:
@@ -233,7 +234,7 @@ def test_a_plugin_that_fails_to_register_is_listed_and_the_rest_load(fixture, co
 
 def test_import_error_is_listed_as_broken(installed):
     installed("import_error", "raises_in_compute")
-    plugins = get_plugin_manager()
+    plugins = load_plugin_set()
     (broken,) = [b for b in plugins.broken if b.plugin == "import_error"]
     assert broken.package == FIXTURE_DIST
     assert "ModuleNotFoundError" in broken.error and "qep_missing_site_library" in broken.error
@@ -246,7 +247,7 @@ def test_import_error_is_listed_as_broken(installed):
 def test_prepare_jinja_env_reaches_a_firm_template(tmp_path):
     from reportgen.render.assets import render_assets
     from reportgen.render.html import render_html
-    from reportgen.templates import jinja_hook
+    from reportgen.render.logo import jinja_hook
 
     plugins = plugins_with("jinja_filter")
     doc = compute(make_job({"plugin": "free_vibration",

@@ -17,9 +17,10 @@ from pathlib import Path
 import pytest
 from conftest import assert_case
 
-from reportgen import cli, scaffold
-from reportgen.jobfile import load_job
-from reportgen.plugins import get_plugin_manager
+from reportgen import cli
+from reportgen.calc.plugin_set import load_plugin_set
+from reportgen.cli import scaffold
+from reportgen.job.load import load_job
 from reportgen.testing import assert_calc_contract, compute, make_job, result
 
 
@@ -120,7 +121,7 @@ def test_files_of_the_package(tmp_path):
 def test_scaffolded_calc_meets_the_contract(tmp_path, imported):
     target = scaffold_into(tmp_path, "qep_contract")
     module = imported(target, "qep_contract")
-    plugins = get_plugin_manager(extra=[("qep_contract", module)])
+    plugins = load_plugin_set(extra=[("qep_contract", module)])
     job = load_job(target / "example_job.toml", plugins)
     (spec,) = job.calcs
     table = {"inputs": {"mass": "620 kg", "mounts": 4, "mount_stiffness": "60 kN/m"},
@@ -137,7 +138,7 @@ def test_scaffolded_calc_against_the_static_deflection_case(tmp_path, imported, 
     # stiffness so that 1000 kg on 4 mounts deflects exactly `mm`.
     case = check_cases["A6_static_deflection_natural_frequency"]
     target = scaffold_into(tmp_path, "qep_case_a6")
-    plugins = get_plugin_manager(extra=[("qep_case_a6", imported(target, "qep_case_a6"))])
+    plugins = load_plugin_set(extra=[("qep_case_a6", imported(target, "qep_case_a6"))])
     k = 1000 * 9.80665 / (4 * mm / 1000)
     doc = compute(make_job({"plugin": "qep_case_a6", "inputs": {
         "mass": "1000 kg", "mounts": 4, "mount_stiffness": f"{k!r} N/m"},

@@ -4,7 +4,7 @@ The corpus: the README's job and every sample job, each altered by a determinist
 mutation table (wrong units, wrong dimension, negative, zero, non-numeric, unknown and
 missing keys, dates, ids, plain numbers and numeric strings). For every copy, "the JSON
 Schema accepts it" (jsonschema, draft 2020-12, formats asserted) must equal "check accepts
-it" (reportgen.jobfile.load_job), except where the mutation falls under one of the
+it" (reportgen.job.load.load_job), except where the mutation falls under one of the
 schema's documented KNOWN_DIFFERENCES; each such exception is named by the mutation.
 """
 
@@ -21,10 +21,10 @@ from typing import Any
 
 import pytest
 
-from reportgen.commands import load_plugins
+from reportgen.calc.plugin_set import load_plugins
 from reportgen.errors import JobError
-from reportgen.jobfile import load_job
-from reportgen.schema import KNOWN_DIFFERENCES, job_schema, unit_pattern
+from reportgen.job.load import load_job
+from reportgen.job.schema import KNOWN_DIFFERENCES, job_schema, unit_pattern
 from reportgen.units import DIMENSIONS
 
 jsonschema = pytest.importorskip("jsonschema")
@@ -96,7 +96,10 @@ def to_json(v: Any) -> Any:
 WRONG = {"mass": "3 m", "length": "3 kg", "time": "3 Hz", "force": "3 kg",
          "stiffness": "350 kg", "damping": "3 kN/m", "velocity": "3 m/s**2",
          "acceleration": "3 m/s", "frequency": "3 s", "angular_frequency": "3 m",
-         "angle": "3 m", "mass_length": "3 kg", "dimensionless": "0.05 kg"}
+         "angle": "3 m", "mass_length": "3 kg", "dimensionless": "0.05 kg",
+         "moment": "3 kN", "rotational_stiffness": "3 kN/m", "moment_of_inertia": "3 kg*m",
+         "pressure": "3 kN", "density": "3 kg/m**2", "area": "3 m", "second_moment_of_area":
+         "3 m**2", "force_per_length": "3 kN"}
 #: other good spellings of each dimension (names, plurals, US units, spaces, exponents)
 SPELLINGS = {
     "mass": ["1200 kilograms", "2650 lb", "1.2 t", "1200kg"],
@@ -112,6 +115,14 @@ SPELLINGS = {
     "angle": ["30 deg", "0.5 rad", "0.5", "30 degrees"],
     "mass_length": ["0.5 kg*m", "500 g*mm", "0.5 kg m"],
     "dimensionless": ["0.05", "5 %", "5 percent"],
+    "moment": ["3 kN*m", "250 lbf*in", "3 kN m"],
+    "rotational_stiffness": ["20 kN*m/rad", "20 kN*m", "1e6 N m/rad"],
+    "moment_of_inertia": ["150 kg*m**2", "150 kg m^2", "5000 lb*in**2"],
+    "pressure": ["150 kPa", "20 psi", "3 kN/m**2", "3 kN/m²"],
+    "density": ["2400 kg/m**3", "145 lb/ft**3", "2400 kg/m³"],
+    "area": ["2 m**2", "30 in²", "2 m^2"],
+    "second_moment_of_area": ["4.2e8 mm**4", "900 in**4", "0.0004 m⁴"],
+    "force_per_length": ["2 kN/m", "150 lbf/ft", "2000 N/m"],
 }
 
 

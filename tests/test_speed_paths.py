@@ -12,10 +12,10 @@ from pathlib import Path
 import pytest
 from conftest import REPO
 
-from reportgen.build import compute_document
-from reportgen.cache import VerificationCache
-from reportgen.commands import load_plugins
-from reportgen.jobfile import load_job
+from reportgen.calc.plugin_set import load_plugins
+from reportgen.document.compute import compute_document
+from reportgen.document.verification import VerificationCache
+from reportgen.job.load import load_job
 from reportgen.render.assets import iter_asset_blocks
 from reportgen.render.math import equation_latex
 
@@ -138,8 +138,8 @@ def test_verification_cache_reuses_rows_and_ignores_corrupt_entries(plugins, tmp
 
 
 def test_verification_key_follows_inputs_and_plugin_version(plugins, tmp_path, monkeypatch):
-    from reportgen.build import calc_context
-    from reportgen.cache import verification_key
+    from reportgen.document.compute import calc_context
+    from reportgen.document.verification import verification_key
 
     job = _free_job(plugins, tmp_path)
     reg = plugins.calcs["free_vibration"]
@@ -153,7 +153,7 @@ def test_verification_key_follows_inputs_and_plugin_version(plugins, tmp_path, m
 
 
 def test_self_check_text_matches_pypdf(tmp_path):
-    from reportgen.selfcheck import extract_text, fast_text
+    from reportgen.render.selfcheck import extract_text, fast_text
 
     assert main_build(tmp_path) in (0, 1)
     pdf = next(tmp_path.glob("*.pdf")).read_bytes()
@@ -188,7 +188,7 @@ def test_self_check_pattern_reader_matches_the_content_parser(tmp_path):
 
     import pikepdf
 
-    from reportgen import selfcheck
+    from reportgen.render import selfcheck
 
     assert main_build(tmp_path) in (0, 1)
     pdf = next(tmp_path.glob("*.pdf")).read_bytes()
@@ -230,43 +230,52 @@ def test_images_drawn_during_the_layout_give_the_same_pdf():
     """Figures and equations handed over while WeasyPrint lays out (and a figure whose
     announced size is wrong, which makes the layout start again) give the bytes of a
     layout with every image present from the start."""
-    from reportgen.pipeline import BuildOptions, Prepared, package_html, package_pdf
-    from reportgen.results import results_bytes
-    from reportgen.split import local_later
+    import dataclasses
+
+    from reportgen.pipeline.fork import local_later
+    from reportgen.pipeline.plan import BuildOptions, front_half, layout
+    from reportgen.pipeline.scheduler import Images, Scheduler
 
     plugins = load_plugins()
-    job = load_job(REPO / "sample_jobs" / "qep-104-chiller-ch1.toml", plugins)
-    doc = compute_document(job, plugins)
     opts = BuildOptions(out_dir=Path("unused"), use_cache=False)
-    prep, rest = package_html(doc, job, opts, results_bytes(doc), plugins)
-    assert not list(rest)
-    eager, payloads = package_pdf(prep)
-    images = prep.images
-    kinds = dict(_kinds(images))
+    front = front_half(REPO / "sample_jobs" / "qep-104-chiller-ch1.toml", plugins, opts,
+                       Scheduler(use_cache=False))
+    assert not list(front.pending)
+    images = Images(front, None)
+    eager, payloads = layout(front, images), images.payloads()
+    kinds = dict(_kinds(front))
     assert {"figure", "equation"} <= set(kinds.values())
-    fonts = {u: b for u, b in images.ready.items() if u not in kinds}
+    fonts = {u: b for u, b in front.ready.items() if u not in kinds}
     for wrong in (False, True):
-        later = {url: (None if kind == "equation" else _size_of(images, url, wrong))
+        later = {url: (None if kind == "equation" else _size_of(front, url, wrong))
                  for url, kind in kinds.items()}
-        staged = type(images)(assets=images.assets, ready=dict(fonts), later=later,
-                              jobs={u: (k, None, "SI") for u, k in kinds.items()})
+        staged = dataclasses.replace(front, ready=dict(fonts), pending=later,
+                                     jobs={u: (k, None, "SI") for u, k in kinds.items()})
         feed = local_later((u, payloads[u]) for u in kinds)
-        pdf, got = package_pdf(Prepared(**{**prep.__dict__, "images": staged}), feed)
+        drawn = Images(staged, feed)
+        pdf, got = layout(staged, drawn), drawn.payloads()
         assert pdf == eager, f"wrong size announced: {wrong}"
         assert got == payloads
 
 
-def _kinds(images):
+def _blocks(front):
+    from reportgen.render.assets import asset_key, asset_url, iter_asset_blocks
+
+    return {asset_url(asset_key(b, front.doc.info.units)): b
+            for _k, b in iter_asset_blocks(front.doc)}
+
+
+def _kinds(front):
     block_kind = {}
-    for block, url in images.assets.items():
+    for url, block in _blocks(front).items():
         block_kind[url] = "figure" if type(block).__name__ == "Figure" else "equation"
     return block_kind.items()
 
 
-def _size_of(images, url, wrong: bool):
+def _size_of(front, url, wrong: bool):
     from reportgen.render.figures import figure_points
 
-    block = next(b for b, u in images.assets.items() if u == url)
+    block = _blocks(front)[url]
     w, h = figure_points(block)
     return (w, h + 36.0) if wrong else (w, h)
 
@@ -276,7 +285,7 @@ def test_html_written_beside_the_pdf_is_self_contained_and_lays_out_the_same(tmp
     import weasyprint
 
     from reportgen.cli import main
-    from reportgen.selfcheck import fast_text
+    from reportgen.render.selfcheck import fast_text
 
     job = REPO / "sample_jobs" / "qep-104-chiller-ch1.toml"
     assert main(["build", str(job), "--out", str(tmp_path), "--force", "--html",

@@ -6,8 +6,7 @@ from collections.abc import Mapping
 
 from reportgen_plugins.mechanics import quantity_text
 
-from reportgen import Sheet
-from reportgen.calc import linear_validity_check
+from reportgen import Sheet, linear_validity_check
 
 from . import text
 from .working import Printed

@@ -7,8 +7,7 @@ from typing import Any
 
 from reportgen_plugins.mechanics import quantity_text
 
-from reportgen import Sheet
-from reportgen.calc import linear_validity_check
+from reportgen import Sheet, linear_validity_check
 from reportgen.units import format_number
 
 from .method import SQRT2, peak_ratio, transmissibility

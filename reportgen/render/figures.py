@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import io
 
-from ..model import Figure
+from reportgen.model import Figure
 
 _STYLE = {"line": "-", "dashed": "--", "dotted": ":", "points": "none"}
 _COLORS = ("#1f3b5c", "#b5651d", "#4f7f3a", "#7a3b69", "#5c5c5c", "#2f7d8c")

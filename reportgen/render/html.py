@@ -15,9 +15,9 @@ from typing import Any
 
 from markupsafe import Markup, escape
 
-from ..formula import _GREEK
-from ..model import BLOCK_TYPES, Check, Document, Quantity, VerificationRow
-from ..units import DIMENSIONS, format_number, table_display
+from reportgen.formula import _GREEK
+from reportgen.model import BLOCK_TYPES, Check, Document, Matrix, Quantity, VerificationRow
+from reportgen.units import DIMENSIONS, format_number, table_display
 
 _GREEK_CHARS = {
     "alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
@@ -71,7 +71,7 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
     import jinja2
     from jinja2.sandbox import ImmutableSandboxedEnvironment
 
-    from .theme import ThemeLoader
+    from reportgen.render.theme import ThemeLoader
 
     loaders: list[jinja2.BaseLoader] = []
     if template_dir is not None:
@@ -108,7 +108,40 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
     def comparison(c: Check) -> str:
         return COMPARISON_WORDS.get(c.comparison, c.comparison)
 
+    def column_unit(dimension: str) -> str:
+        label = quantity_parts(Quantity(value=1.0, dimension=dimension), units)[1]
+        return f" ({label})" if label else ""
+
+    def cell_is_number(cell: Any) -> bool:
+        return isinstance(cell, (int, float, Quantity)) and not isinstance(cell, bool)
+
+    def cell_text(cell: Any, dimension: str, digits: int = 4) -> str:
+        """A table cell: text as it is, a number in the column's display unit (its unit
+        is in the header), a Quantity with its own unit."""
+        if cell is None:
+            return ""
+        if isinstance(cell, Quantity):
+            v, u = quantity_parts(cell, units, digits)
+            return f"{v} {u}".strip()
+        if isinstance(cell, (int, float)) and not isinstance(cell, bool):
+            return quantity_parts(Quantity(value=float(cell), dimension=dimension or
+                                           "dimensionless"), units, digits)[0]
+        return str(cell)
+
+    def matrix_cell(m: Matrix, i: int, j: int) -> str:
+        v, u = quantity_parts(Quantity(value=m.values[i][j], dimension=m.dimension(i, j)),
+                              units, m.digits)
+        return f"{v} {u}".strip() if len({m.dimension(a, b) for a in range(len(m.values))
+                                          for b in range(len(m.values[a]))}) > 1 else v
+
+    def matrix_unit(m: Matrix) -> str:
+        dims = {m.dimension(a, b) for a in range(len(m.values))
+                for b in range(len(m.values[a]))}
+        return column_unit(dims.pop()) if len(dims) == 1 else ""
+
     env.globals.update(
+        column_unit=column_unit, matrix_unit=matrix_unit, cell_is_number=cell_is_number,
+        cell_text=cell_text, matrix_cell=matrix_cell,
         asset=asset, block_kind=lambda b: type(b).__name__, sym=symbol_html, qv=qv, qu=qu,
         q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=units,
         dimension_label=lambda d: (DIMENSIONS[d].us_label if units == "US"
@@ -129,8 +162,8 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
                 logo: str | None = None, extra_hook: Any = None) -> str:
     import jinja2
 
-    from ..errors import ThemeError
-    from .theme import template_failure
+    from reportgen.errors import ThemeError
+    from reportgen.render.theme import template_failure
 
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
     try:

@@ -7,11 +7,10 @@ The symbolic and substituted forms both come from the one expression tree in
 from __future__ import annotations
 
 import math
-import re
 
-from ..formula import is_scientific, number_latex, symbol_latex, to_latex
-from ..model import Equation
-from ..units import DIMENSIONS, display
+from reportgen.formula import is_scientific, number_latex, symbol_latex, to_latex
+from reportgen.model import Equation
+from reportgen.units import DIMENSIONS, display
 
 
 def unit_latex(label: str) -> str:
@@ -48,20 +47,3 @@ def equation_latex(eq: Equation, units: str = "SI") -> str:
         result += r"\ \left(" + degrees + r"^{\circ}\right)"
     parts.append(result)
     return " = ".join(parts)
-
-
-_SVG_SIZE = re.compile(rb'width="([\d.]+)" height="([\d.]+)"')
-
-
-def latex_svg(latex: str, size: float = 12.5) -> bytes:
-    import ziamath
-
-    svg = ziamath.Latex(latex, size=size).svg()
-    return svg.encode("utf-8")
-
-
-def svg_size(svg: bytes) -> tuple[float, float]:
-    m = _SVG_SIZE.search(svg)
-    if not m:
-        return (0.0, 0.0)
-    return float(m.group(1)), float(m.group(2))

@@ -13,6 +13,7 @@ import hashlib
 import io
 import xml.etree.ElementTree as ET
 from functools import lru_cache
+from typing import Any
 
 #: The family name the equation SVGs ask for; private, so no installed font can stand in.
 MATH_FAMILY = "reportgen-math"
@@ -187,7 +188,7 @@ def glyphs_to_text(svg: str, cmap, scripts: dict[tuple[str, int], str] | None = 
     symbols = {s.get("id"): s for s in root.iter(_SVG_NS + "symbol")}
     out = ET.Element(_SVG_NS + "svg", dict(root.attrib))
     kept: list[ET.Element] = []
-    glyphs: list[tuple[tuple[str, str], float, float, str, str, float]] = []
+    glyphs: list[tuple[tuple[str, str], float, float, str, Any, float]] = []
     for el in list(root):
         if el.tag == _SVG_NS + "symbol":
             continue

@@ -16,15 +16,15 @@ images present.
 from __future__ import annotations
 
 import datetime as _dt
-import gc
 import logging
 import os
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Collection, Mapping
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Protocol
 from urllib.parse import unquote, urlparse
 
-from ..errors import RenderError
+from reportgen.errors import RenderError
 
 PDF_VARIANT = "pdf/a-3b"
 #: the most the renderer reads of one file from the job's or the theme's folder
@@ -54,7 +54,7 @@ class EmbeddedFile:
 def _fetcher_class():
     from weasyprint.urls import FatalURLFetchingError, URLFetcher, URLFetcherResponse
 
-    from ..safepath import TooLarge, UnsafePath, open_inside, read_fd
+    from reportgen.job.paths import TooLarge, UnsafePath, open_inside, read_fd
 
     class JobFolderFetcher(URLFetcher):
         """Serve data: URIs and regular files under the job folder; refuse the rest."""
@@ -176,39 +176,55 @@ def _later_image_class():
     return LaterSVG
 
 
+class ImageSource(Protocol):
+    """Where the layout gets the package's figures and equations (``reportgen-asset:``
+    URLs): ``get`` gives an image's SVG, waiting if it is still being drawn (None: not an
+    asset of this package); ``size`` gives, for an image still being drawn, its size in
+    points where that is known beforehand (a figure), else None; ``pending`` names the
+    images still being drawn when the layout starts."""
+
+    @property
+    def pending(self) -> Collection[str]: ...
+
+    def get(self, url: str) -> bytes | None: ...
+
+    def size(self, url: str) -> tuple[float, float] | None: ...
+
+
+class ReadyImages:
+    """An image source with every image present (nothing pending)."""
+
+    pending: Collection[str] = ()
+
+    def __init__(self, payloads: Mapping[str, bytes] | None = None):
+        self.payloads = dict(payloads or {})
+
+    def get(self, url: str) -> bytes | None:
+        return self.payloads.get(url)
+
+    def size(self, url: str) -> tuple[float, float] | None:
+        return None
+
+
 def write_pdf(html: str, *, base_dir: Path | None, attachments: list[EmbeddedFile],
               date: str, extra_roots: tuple[Path, ...] = (),
-              images: Mapping[str, bytes] | None = None,
-              later: Mapping[str, tuple[float, float] | None] | None = None,
-              get_later: Callable[[str], bytes] | None = None) -> bytes:
+              images: ImageSource | None = None) -> bytes:
     """Lay out ``html`` and return the PDF bytes (PDF/A-3b, deterministic).
 
-    ``images`` serves the HTML's ``reportgen-asset:`` URLs; ``later`` lists those still
-    being drawn, with their size in points where it is known beforehand (else None),
-    and ``get_later(url)`` waits for one of them.
+    The images still being drawn when the layout starts get stand-ins (of their size,
+    where it is known), so layout need not wait for them; if one turns out to be another
+    size, the layout is done again with every image present.
     """
-    images = dict(images or {})
-    later = dict(later or {}) if get_later is not None else {}
-    # WeasyPrint builds a large graph of boxes; the cyclic garbage collector re-scans it
-    # again and again as the layout allocates (~25 % of the layout's time, measured).
-    # Collection waits until the layout is done: a few per cent more peak memory.
-    collecting = gc.isenabled()
-    gc.disable()
+    source = images or ReadyImages()
     try:
-        return _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
-                          get_later)
+        return _write_pdf(html, base_dir, attachments, date, extra_roots, source,
+                          tuple(source.pending))
     except _LaterSizeMismatch:
-        # a drawing is not the size announced: lay out again with every image present
-        assert get_later is not None
-        images.update((url, get_later(url)) for url in later)
-        return _write_pdf(html, base_dir, attachments, date, extra_roots, images, {}, None)
-    finally:
-        if collecting:
-            gc.enable()
+        return _write_pdf(html, base_dir, attachments, date, extra_roots, source, ())
 
 
-def _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
-               get_later) -> bytes:
+def _write_pdf(html, base_dir, attachments, date, extra_roots, images: ImageSource,
+               later: tuple[str, ...]) -> bytes:
     # fontTools (used when HarfBuzz subsetting is not installed) stamps the clock into
     # each embedded font unless SOURCE_DATE_EPOCH is set: pin it to the revision date.
     # The variable is a count of seconds from 1970 and may not be negative (fontTools
@@ -222,17 +238,12 @@ def _write_pdf(html, base_dir, attachments, date, extra_roots, images, later,
     from weasyprint.text.fonts import FontConfiguration
     from weasyprint.urls import FatalURLFetchingError
 
-    def asset(url: str) -> bytes | None:
-        if url in images:
-            return images[url]
-        return get_later(url) if url in later and get_later is not None else None
-
-    fetcher = _fetcher_class()(base_dir, extra_roots, asset)
+    fetcher = _fetcher_class()(base_dir, extra_roots, images.get)
     font_config = FontConfiguration()
     if later:
         lazy = _later_image_class()
-        cache: dict | None = {url: lazy(url, size, get_later, fetcher, font_config)
-                              for url, size in later.items()}
+        cache: dict | None = {url: lazy(url, images.size(url), images.get, fetcher,
+                                        font_config) for url in later}
     else:
         cache = None
     try:

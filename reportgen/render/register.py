@@ -6,8 +6,8 @@ from typing import Any
 
 
 def register_pdf(rows: list[dict[str, Any]]) -> bytes:
-    from .html import make_env
-    from .pdf import write_pdf
+    from reportgen.render.html import make_env
+    from reportgen.render.pdf import write_pdf
 
     env = make_env(None, "SI", {})
     html = env.get_template("register.html").render(rows=rows)

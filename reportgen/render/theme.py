@@ -11,8 +11,8 @@ from typing import Any
 
 import jinja2
 
-from ..errors import Problem, RenderError, ThemeError
-from ..safepath import TooLarge, UnsafePath, open_inside, path_parts, read_fd
+from reportgen.errors import Problem, RenderError, ThemeError
+from reportgen.job.paths import TooLarge, UnsafePath, open_inside, path_parts, read_fd
 
 #: templates, stylesheets and logos of a theme: text and small pictures
 THEME_FILE_LIMIT = 2_000_000
@@ -28,7 +28,7 @@ def theme_error(file: Path | str, message: str) -> ThemeError:
 
 
 class ThemeLoader(jinja2.BaseLoader):
-    """Templates from one folder, by the one safe-path rule (reportgen.safepath).
+    """Templates from one folder, by the one safe-path rule (reportgen.job.paths).
 
     A name that leaves the folder, a file that is a symbolic link (or lies under one)
     or is not a regular file, or one over ``limit`` bytes is refused (ThemeError), never

@@ -1,0 +1,5 @@
+"""``python -m reportgen.cli``: the command line."""
+
+from reportgen.cli import run
+
+run()

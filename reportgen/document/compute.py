@@ -1,0 +1,293 @@
+"""Compute a job into a Document: call each calc's compute and verify, wrapped per plugin.
+
+This module runs plugins and assembles the document tree; it never renders.
+"""
+
+from __future__ import annotations
+
+import math
+import platform
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass
+from typing import Any
+
+from reportgen._version import __version__
+from reportgen.calc.plugin_set import PluginSet, RegisteredCalc
+from reportgen.calc.sheet import CalcContext, CalcOutput
+from reportgen.calc.spec import InputSpec
+from reportgen.document.transforms import apply_transforms
+from reportgen.errors import PluginError, ReportgenError, VerificationError
+from reportgen.job.load import CalcSpec, Job
+from reportgen.model import (
+    BLOCK_TYPES,
+    Block,
+    Check,
+    Document,
+    Equation,
+    Figure,
+    InputRow,
+    InputsTable,
+    Quantity,
+    ResultRow,
+    Section,
+    Table,
+    VerificationRow,
+)
+from reportgen.units import DIMENSIONS
+
+VerifyHook = Callable[[RegisteredCalc, CalcContext, CalcOutput], Any]
+
+
+@dataclass(frozen=True, kw_only=True)
+class Computed:
+    """One calc computed (its output checked), waiting for its verification rows."""
+
+    spec: CalcSpec
+    reg: RegisteredCalc
+    ctx: CalcContext
+    output: CalcOutput
+
+
+def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None = None,
+                     on_computed: Callable[[Computed], None] | None = None) -> Document:
+    """Run every calc of ``job`` once and return the transformed document.
+
+    Every calc is computed first, ``on_computed`` hearing of each as it is done (a
+    scheduler starts its verification and its drawings then); then each calc's rows come
+    from ``verify`` (a cache, or a scheduler collecting what it started), or from the
+    calc type's own ``verify``. Raises PluginError when a plugin raises or returns
+    malformed output, and VerificationError when an independent check disagrees.
+    """
+    computed = []
+    for spec in job.calcs:
+        c = compute_calc(spec, plugins.calcs[spec.plugin], job.info.units)
+        if on_computed is not None:
+            on_computed(c)
+        computed.append(c)
+    sections = [finish_section(c, verify) for c in computed]
+    software = [("reportgen", "reportgen", __version__),
+                ("Python", platform.python_implementation(), platform.python_version())]
+    seen = set()
+    for spec in job.calcs:
+        reg = plugins.calcs[spec.plugin]
+        if reg.name not in seen:
+            seen.add(reg.name)
+            software.append((f"calc type {reg.name}", reg.package,
+                             reg.calc_type.version))
+    doc = Document(info=job.info, revision_history=job.revision_history,
+                   sections=tuple(sections), software=tuple(software))
+    return apply_transforms(doc)
+
+
+def calc_context(spec: CalcSpec, units: str) -> CalcContext:
+    return CalcContext(calc_id=spec.id, title=spec.title, inputs=dict(spec.inputs),
+                       given=spec.given, criteria=dict(spec.criteria),
+                       criteria_given=spec.criteria_given, units=units,
+                       files=dict(spec.files))
+
+
+def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
+             cause: BaseException | None = None) -> PluginError:
+    # name the plugin as installed (its entry point), and the calc type when it differs
+    about = "" if c_reg.plugin == c_reg.name else f"calc type '{c_reg.name}': "
+    err = PluginError(about + message, plugin=c_reg.plugin, package=c_reg.package,
+                      calc=calc_id, stage=stage)
+    err.__cause__ = cause
+    return err
+
+
+def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
+    """Call the calc's compute once, wrapped so a failure names its plugin; check the
+    output is well formed."""
+    ctx = calc_context(spec, units)
+    try:
+        out = reg.calc_type.compute(ctx)
+    except ReportgenError:
+        raise
+    except Exception as exc:
+        raise _failure(reg, spec.id, f"compute raised {type(exc).__name__}: {exc}", "compute",
+                       exc) from exc
+    problem = check_output(out)
+    if problem:
+        raise _failure(reg, spec.id, f"compute returned malformed output: {problem}",
+                       "compute")
+    return Computed(spec=spec, reg=reg, ctx=ctx, output=out)
+
+
+def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
+    """The calc's section: its verification rows (which must agree), its inputs tables
+    and the blocks it computed."""
+    spec, reg, ctx, out = c.spec, c.reg, c.ctx, c.output
+    ct = reg.calc_type
+    try:
+        rows = verify(reg, ctx, out) if verify else ct.verify(ctx, out)
+    except ReportgenError:
+        raise
+    except Exception as exc:
+        raise _failure(reg, spec.id, f"verify raised {type(exc).__name__}: {exc}", "verify",
+                       exc) from exc
+    verification: tuple[VerificationRow, ...] | None = None
+    if rows is not None:
+        rows = tuple(rows)
+        bad = [r for r in rows if not isinstance(r, VerificationRow)]
+        if bad:
+            raise _failure(reg, spec.id, f"verify returned {type(bad[0]).__name__}, not"
+                           " VerificationRow", "verify")
+        disagree = [r for r in rows if not r.agrees]
+        if disagree:
+            about = "" if reg.plugin == reg.name else f"calc type '{reg.name}': "
+            text = "; ".join(
+                f"{r.quantity}: closed form {r.closed_form:.6g}, independent {r.independent:.6g}"
+                f" (relative difference {r.rel_difference:.2e} > tolerance {r.tolerance:.1e})"
+                for r in disagree)
+            raise VerificationError(f"{about}independent verification disagrees: {text}; a"
+                                    " package whose two methods disagree is not issued",
+                                    plugin=reg.plugin, package=reg.package, calc=spec.id,
+                                    stage="verify")
+        verification = rows
+    inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
+                                                spec.raw_inputs))
+    blocks: tuple[Block, ...] = (inputs_block, *_input_tables(ct.inputs, spec.inputs))
+    if spec.criteria or ct.criteria:
+        crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given,
+                                spec.raw_criteria)
+        if crit_rows:
+            blocks += (InputsTable(rows=crit_rows, title="Design criteria"),)
+        blocks += _input_tables(ct.criteria, spec.criteria)
+    return Section(
+        calc_id=spec.id, plugin=reg.name, plugin_version=ct.version,
+        plugin_package=reg.package, title=spec.title, purpose=out.purpose or ct.purpose,
+        blocks=blocks + tuple(out.blocks), results=tuple(out.results),
+        checks=tuple(out.checks), verification=verification, notes=spec.notes,
+        sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
+
+
+def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
+                    verify: VerifyHook | None = None) -> Section:
+    """One calc, computed and verified (the test kit's way to look at a section alone)."""
+    return finish_section(compute_calc(spec, reg, units), verify)
+
+
+def _input_tables(specs: tuple[InputSpec, ...], values: Mapping[str, Any]
+                  ) -> tuple[Table, ...]:
+    """A table input is shown as a table of its own, one row per row given, each cell in
+    its column's display unit."""
+    out = []
+    for sp in specs:
+        if sp.kind != "table" or sp.name not in values:
+            continue
+        cols = sp.columns
+        out.append(Table(
+            title=sp.description, header=("#", *(c.description for c in cols)),
+            units=("", *("" if c.kind == "text" else c.dimension for c in cols)),
+            rows=tuple((str(i), *(row.get(c.name) for c in cols))
+                       for i, row in enumerate(values[sp.name], start=1))))
+    return tuple(out)
+
+
+def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
+                given: frozenset[str], raw: Mapping[str, Any]) -> tuple[InputRow, ...]:
+    rows = []
+    for sp in specs:
+        if sp.name not in values:
+            continue
+        value = values[sp.name]
+        written = raw.get(sp.name)
+        source = (f"job file: {written}" if isinstance(written, (str, int, float))
+                  and not isinstance(written, bool) else "job file") if sp.name in given else (
+            "default" + (f" ({sp.default_note})" if sp.default_note else ""))
+        if sp.kind == "table":
+            continue  # a table of its own (_input_tables)
+        if sp.kind in ("choice", "text", "file"):
+            text = (f"{value.name} ({value.size} bytes, SHA-256 {value.sha256[:12]}…)"
+                    if sp.kind == "file" else str(value))
+            rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
+                                 quantity=None, text=text,
+                                 source="job file" if sp.name in given else source))
+            continue
+        if sp.kind in ("pair", "points"):
+            flat = [v for v in _flatten(value)]
+            for i, v in enumerate(flat):
+                rows.append(InputRow(name=f"{sp.name}[{i}]", symbol=sp.symbol,
+                                     description=f"{sp.description} ({_ordinal(sp, i)})",
+                                     quantity=Quantity(value=v, dimension=sp.dimension),
+                                     source=source))
+            continue
+        rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
+                             quantity=Quantity(value=float(value), dimension=sp.dimension),
+                             source=source))
+    return tuple(rows)
+
+
+def _ordinal(sp: InputSpec, i: int) -> str:
+    if sp.kind == "pair":
+        return ("from", "to")[i]
+    return f"point {i // 2 + 1}, {'xy'[i % 2]}"
+
+
+def _flatten(value: Any):
+    if isinstance(value, (tuple, list)):
+        for v in value:
+            yield from _flatten(v)
+    else:
+        yield float(value)
+
+
+def check_output(out: Any) -> str:
+    """Why a plugin's CalcOutput is malformed, or '' when it is well formed."""
+    if not isinstance(out, CalcOutput):
+        return f"expected CalcOutput, got {type(out).__name__}"
+    for b in out.blocks:
+        if not isinstance(b, BLOCK_TYPES):
+            return f"block of type {type(b).__name__} is not a reportgen block"
+        if isinstance(b, Equation):
+            if not math.isfinite(b.result.value) or b.result.dimension not in DIMENSIONS:
+                return f"equation {b.name} has a bad result {b.result!r}"
+            problem = _equation_problem(b)
+            if problem:
+                return problem
+        if isinstance(b, Figure):
+            for p in b.panels:
+                for s in p.series:
+                    if len(s.x) != len(s.y):
+                        return f"figure {b.key}: series '{s.label}' has x and y of unequal length"
+                    if len(s.x) > 50000:
+                        return f"figure {b.key}: series '{s.label}' has {len(s.x)} points"
+    for r in out.results:
+        if not isinstance(r, ResultRow):
+            return f"result of type {type(r).__name__} is not a ResultRow"
+        q = r.quantity
+        if q.dimension not in DIMENSIONS:
+            return f"result {r.key} has unknown dimension {q.dimension!r}"
+        if not isinstance(q.value, float) or not math.isfinite(q.value):
+            return f"result {r.key} is not a finite number ({q.value!r})"
+    keys = [r.key for r in out.results]
+    if len(keys) != len(set(keys)):
+        return "duplicate result keys"
+    for c in out.checks:
+        if not isinstance(c, Check) or c.status not in ("pass", "fail", "info"):
+            return f"malformed check {c!r}"
+    ids = [c.id for c in out.checks]
+    if len(ids) != len(set(ids)):
+        return "duplicate check ids"
+    return ""
+
+
+def _equation_problem(eq: Equation) -> str:
+    """An equation block whose substitution does not give its printed result is refused:
+    a reader re-doing the arithmetic must get the number the package states."""
+    from reportgen.formula import FormulaError, evaluate, names_in
+
+    try:
+        names = names_in(eq.expression)
+        operands = dict(eq.operands)
+        if names != operands.keys():
+            return (f"equation {eq.name} = {eq.expression}: operands {sorted(operands)}"
+                    f" do not match the names in the expression {sorted(names)}")
+        again = evaluate(eq.expression, operands)
+    except (FormulaError, ArithmeticError, ValueError, TypeError) as exc:
+        return f"equation {eq.name} = {eq.expression} cannot be evaluated: {exc}"
+    if not math.isclose(again, eq.result.value, rel_tol=1e-9, abs_tol=1e-300):
+        return (f"equation {eq.name} = {eq.expression}: its operands give {again:.6g}, but"
+                f" the block states {eq.result.value:.6g}")
+    return ""
