@@ -16,10 +16,12 @@ __all__ = [
     "DIMENSIONS",
     "Dimension",
     "STANDARD_GRAVITY",
+    "Spread",
     "UnitProblem",
     "display",
     "format_number",
     "parse_quantity",
+    "parse_spread",
 ]
 
 #: Standard gravity, m/s² (CGPM 1901, ISO 80000-3).
@@ -127,6 +129,92 @@ def _prepare(text: str, dimension: str) -> str:
             text,
         )
     return text
+
+
+_TO = re.compile(r"^(?P<a>.+?)\s+to\s+(?P<b>.+)$", re.IGNORECASE)
+_PLUS_MINUS = re.compile(r"^(?P<v>.*?)\s*(?:±|\+/-|\+-)\s*(?P<t>.+)$")
+_ASYMMETRIC = re.compile(r"^\s*\+\s*(?P<p>[^/]+?)\s*/\s*-\s*(?P<m>.+?)\s*$")
+_PERCENT = re.compile(r"^\s*(?P<n>[0-9.eE+-]+)\s*(?:%|percent)\s*$")
+
+
+@dataclass(frozen=True, slots=True)
+class Spread:
+    """A value given with its spread: a range ("900 to 1800 rpm", nominal mid-range) or a
+    tolerance ("350 kN/m ± 15 %", "+10 % / -5 %", "± 0.5 mm"; nominal the stated value).
+    SI values; ``text`` as written."""
+
+    nominal: float
+    low: float
+    high: float
+    kind: str  # "range" | "tolerance"
+    text: str
+
+
+def parse_spread(raw: object, dimension: str, tolerance: object = None) -> Spread | None:
+    """Read a range or a tolerance, or return None when ``raw`` is a plain value (and no
+    ``tolerance`` is given separately). Raises UnitProblem naming what is wrong: a range
+    whose ends are in the wrong order, a tolerance that is not a percentage or a quantity
+    of the same dimension, a relative tolerance of 100 % or more."""
+    if isinstance(raw, str):
+        m = _TO.match(raw.strip())
+        if m and tolerance is None:
+            a_text, b_text = m.group("a"), m.group("b")
+            b = parse_quantity(b_text, dimension)
+            unit = b_text.strip()[_leading_number_end(b_text.strip()):]
+            a = parse_quantity(a_text if _has_unit(a_text) else a_text + unit, dimension)
+            if not a < b:
+                raise UnitProblem(f"the range {raw!r} must go from the smaller value to the"
+                                  " larger")
+            return Spread(nominal=0.5 * (a + b), low=a, high=b, kind="range", text=raw)
+        m = _PLUS_MINUS.match(raw.strip())
+        if m and m.group("v").strip():
+            if tolerance is not None:
+                raise UnitProblem("give the tolerance once: in the value or as 'tolerance'")
+            raw, tolerance = m.group("v"), "± " + m.group("t")
+    if tolerance is None:
+        return None
+    if not isinstance(tolerance, str):
+        raise UnitProblem(f"expected a tolerance such as \"± 15 %\", \"+10 % / -5 %\" or"
+                          f" \"± 0.5 mm\", found {tolerance!r}")
+    value = parse_quantity(raw, dimension)
+    text = tolerance.strip()
+    asym = _ASYMMETRIC.match(text)
+    if asym:
+        plus, minus = asym.group("p"), asym.group("m")
+    elif text.startswith(("±", "+/-", "+-")):
+        plus = minus = text.lstrip("±+/-").strip()
+    else:
+        raise UnitProblem(f"cannot read the tolerance {tolerance!r}: write \"± 15 %\","
+                          " \"+10 % / -5 %\" or \"± 0.5 mm\"")
+    up, down = (_one_side(t, value, dimension) for t in (plus, minus))
+    if _PERCENT.match(minus) and value > 0 and down >= value:
+        raise UnitProblem(f"a tolerance of {minus} below a positive value reaches zero or"
+                          " less; a relative tolerance must be under 100 %")
+    written = raw if isinstance(raw, str) else str(raw)
+    return Spread(nominal=value, low=value - down, high=value + up, kind="tolerance",
+                  text=f"{written} {text}")
+
+
+def _one_side(text: str, value: float, dimension: str) -> float:
+    m = _PERCENT.match(text)
+    if m:
+        share = float(m.group("n")) / 100.0
+        if not (share >= 0 and math.isfinite(share)):
+            raise UnitProblem(f"a tolerance must be a percentage of 0 or more, found {text!r}")
+        return abs(value) * share
+    amount = parse_quantity(text, dimension)
+    if amount < 0:
+        raise UnitProblem(f"write a tolerance without a sign after ± or +/-, found {text!r}")
+    return amount
+
+
+def _leading_number_end(text: str) -> int:
+    m = _NUMBER.match(text)
+    return m.end() if m else 0
+
+
+def _has_unit(text: str) -> bool:
+    return bool(text.strip()[_leading_number_end(text.strip()):].strip())
 
 
 def parse_quantity(raw: object, dimension: str) -> float:

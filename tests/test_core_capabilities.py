@@ -178,3 +178,4 @@ def test_each_calc_is_computed_once_per_build(tmp_path, extra):
     verifies = sorted(line.split()[1] for line in lines if line.startswith("verify"))
     assert computes == ["c-0", "c-1", "c-2"]
     assert verifies == ["c-0", "c-1", "c-2"]
+

@@ -11,6 +11,7 @@ import math
 import os
 import subprocess
 import sys
+import types
 from importlib import metadata
 from pathlib import Path
 
@@ -40,6 +41,7 @@ def load_fixture(name: str):
     """Import tests/plugins/<name>.py under a private module name."""
     spec = importlib.util.spec_from_file_location(f"_rg_fixture_{name}", FIXTURES / f"{name}.py")
     module = importlib.util.module_from_spec(spec)
+    sys.modules[spec.name] = module  # dataclasses look their module up while the class is made
     spec.loader.exec_module(module)
     return module
 
@@ -371,3 +373,18 @@ def test_every_hookspec_is_exercised_by_a_fixture_plugin(hook):
 
 def test_api_version_is_supported_by_this_core():
     assert hookspecs.API_VERSION in hookspecs.SUPPORTED_API_VERSIONS
+
+
+def test_criteria_registered_by_plugins_are_found_by_any_spelling_of_their_name():
+    plugins = plugins_with("core_capabilities")
+    from reportgen.calc.criteria import load_criteria
+
+    library = load_criteria(plugins)
+    found = library.get("fixture_limit_a")
+    assert found is not None and found.value == 1.0
+    assert library.get("FIXTURE A") is found  # an alias, case and separators aside
+    assert library.get("fixture-limit-b") is None
+    assert library.nearest("fixture-limit-b") == ["Fixture-limit-A"]
+    clash = types.SimpleNamespace(name="fixture limit a", title="t", source="s", value=2.0)
+    twice = load_criteria(plugins, extra=[(clash, "other", "pkg")])
+    assert any("registered by plugin 'other'" in p for p in twice.problems)

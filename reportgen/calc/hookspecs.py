@@ -68,6 +68,24 @@ def reportgen_register_calc_types(context: dict[str, Any]) -> list[CalcType]:  #
     """
 
 
+@hookspec
+def reportgen_register_criteria(context: dict[str, Any]) -> list[Any]:  # type: ignore[empty-body]
+    """Return the criteria this plugin provides (curves, zone tables, guideline values).
+
+    Each is the plugin's own object with at least ``name``, ``title`` and ``source`` (text
+    to print), and optionally ``aliases``. Calc types look criteria up by name through
+    ``ctx.criteria_library``; ``reportgen criteria`` lists them with their sources. Called
+    for each build with the firm's template folder, so a plugin may add the firm's own
+    curves from a data file there. A name registered twice is an error naming both
+    plugins; one plugin raising does not stop the others.
+
+    :param context: ``{"api_version": int, "template_dir": Path | None}``.
+    :returns: a list of criteria (may be empty).
+
+    .. versionadded:: API 1
+    """
+
+
 # ------------------------------------------------------------------ rendering
 
 

@@ -72,6 +72,9 @@ class InputSpec:
     max_rows: int = 500
     formats: tuple[str, ...] = ()
     max_bytes: int = 64 * 1024 * 1024
+    #: a quantity input may be given as a range or with a tolerance (an operating
+    #: envelope); False where one value is all the method can take (a count, a code)
+    rangeable: bool = True
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)

@@ -146,11 +146,11 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
                                     stage="verify")
         verification = rows
     inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
-                                                spec.raw_inputs))
+                                                spec.raw_inputs, spec.sources, "inputs"))
     blocks: tuple[Block, ...] = (inputs_block, *_input_tables(ct.inputs, spec.inputs))
     if spec.criteria or ct.criteria:
         crit_rows = _input_rows(ct.criteria, spec.criteria, spec.criteria_given,
-                                spec.raw_criteria)
+                                spec.raw_criteria, spec.sources, "criteria")
         if crit_rows:
             blocks += (InputsTable(rows=crit_rows, title="Design criteria"),)
         blocks += _input_tables(ct.criteria, spec.criteria)
@@ -186,16 +186,22 @@ def _input_tables(specs: tuple[InputSpec, ...], values: Mapping[str, Any]
 
 
 def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
-                given: frozenset[str], raw: Mapping[str, Any]) -> tuple[InputRow, ...]:
+                given: frozenset[str], raw: Mapping[str, Any], sources: Mapping[str, str],
+                table: str) -> tuple[InputRow, ...]:
     rows = []
     for sp in specs:
         if sp.name not in values:
             continue
         value = values[sp.name]
         written = raw.get(sp.name)
+        if isinstance(written, dict):  # { value = ..., source = ..., tolerance = ... }
+            written = written.get("value")
+        named = sources.get(f"{table}.{sp.name}")
         source = (f"job file: {written}" if isinstance(written, (str, int, float))
                   and not isinstance(written, bool) else "job file") if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
+        if named:
+            source = named
         if sp.kind == "table":
             continue  # a table of its own (_input_tables)
         if sp.kind in ("choice", "text", "file"):
@@ -203,7 +209,7 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
                     if sp.kind == "file" else str(value))
             rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
                                  quantity=None, text=text,
-                                 source="job file" if sp.name in given else source))
+                                 source=named or ("job file" if sp.name in given else source)))
             continue
         if sp.kind in ("pair", "points"):
             flat = [v for v in _flatten(value)]

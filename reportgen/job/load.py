@@ -23,7 +23,7 @@ from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
 from reportgen.model import PackageInfo, RevisionEntry
-from reportgen.units import DIMENSIONS, UnitProblem, parse_quantity
+from reportgen.units import DIMENSIONS, Spread, UnitProblem, parse_quantity, parse_spread
 
 MAX_JOB_BYTES = 1_000_000
 MAX_CALCS = 200
@@ -69,6 +69,17 @@ PACKAGE_KINDS = {
 #: The keys of one [[package.revision_history]] entry, and whether each is required.
 HISTORY_KEYS = {"revision": True, "date": False, "description": True, "by": False}
 UNIT_SYSTEMS = ("SI", "US")
+#: the keys of an input written as a table: { value = "...", source = "...", tolerance = "..." }
+WRAPPER_KEYS = ("value", "source", "tolerance")
+_REFUSED = object()  # an input whose wrapper was refused (the problem is recorded)
+
+
+@dataclass(frozen=True)
+class _Parsed:
+    """An input value already read into SI (the nominal of a range or a tolerance)."""
+
+    value: float
+
 CALC_KEYS = {"id", "plugin", "title", "notes", "inputs", "criteria"}
 
 
@@ -86,6 +97,10 @@ class CalcSpec:
     raw_criteria: Mapping[str, Any]
     #: the data files its "file" inputs name, by input name (read once, at load time)
     files: Mapping[str, DataFile] = field(default_factory=dict)
+    #: the source each input or criterion names ("inputs.mass" -> "Maker's data sheet")
+    sources: Mapping[str, str] = field(default_factory=dict)
+    #: the inputs given with a range or a tolerance, by name (the nominal is in ``inputs``)
+    spreads: Mapping[str, Spread] = field(default_factory=dict)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -406,6 +421,8 @@ class _Validator:
         self.archived = archived
         self.folder = folder
         self._files: dict[str, DataFile] = {}  # the calc being read's data files
+        self._sources: dict[str, str] = {}  # "inputs.mass" -> the source it names
+        self._spreads: dict[str, Spread] = {}  # input -> its range or tolerance
 
     def add(self, message: str, *, calc: str = "", field: str = "") -> None:
         self.problems.append(Problem(self.fname, message, calc, field))
@@ -646,6 +663,8 @@ class _Validator:
             return None
         ct = reg.calc_type
         self._files = {}
+        self._sources = {}
+        self._spreads = {}
         inputs, given = self._values(inputs_raw, ct.inputs, label, "inputs")
         criteria, cgiven = self._values(criteria_raw, ct.criteria, label, "criteria")
         if len(self.problems) == before:
@@ -665,7 +684,8 @@ class _Validator:
         return CalcSpec(id=cid, plugin=plugin, title=title, notes=notes, inputs=inputs,
                         given=given, criteria=criteria, criteria_given=cgiven,
                         raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw),
-                        files=dict(self._files))
+                        files=dict(self._files), sources=dict(self._sources),
+                        spreads=dict(self._spreads))
 
     def _values(self, raw: Mapping[str, Any], specs: tuple[InputSpec, ...], calc: str,
                 table: str) -> tuple[dict[str, Any], frozenset[str]]:
@@ -687,12 +707,74 @@ class _Validator:
                              f" '{spec.name}' ({spec.description}, {_example(spec)}) is missing",
                              calc=calc, field=fld)
                 continue
-            value = self._one(raw[spec.name], spec, calc, fld)
+            written = self._unwrap(raw[spec.name], spec, calc, fld, table)
+            if written is _REFUSED:
+                continue
+            value = self._one(written, spec, calc, fld)
             if value is not None:
                 out[spec.name] = value
         return out, frozenset(k for k in raw if k in by_name)
 
+    def _unwrap(self, raw: Any, spec: InputSpec, calc: str, fld: str, table: str) -> Any:
+        """An input written as ``{ value = ..., source = ..., tolerance = ... }`` gives its
+        value; its source and spread (a range or a tolerance) are recorded. A plain value
+        is its own value; a quantity may carry a range ("900 to 1800 rpm") or a tolerance
+        ("350 kN/m ± 15 %") in its text."""
+        source = tolerance = None
+        if isinstance(raw, dict) and spec.kind != "table":
+            for key in raw:
+                if key not in WRAPPER_KEYS:
+                    self.add(f"expected a value, or a table of value, source and tolerance;"
+                             f" found dict with unknown key '{key}'"
+                             f"{_nearest(key, list(WRAPPER_KEYS))}", calc=calc, field=fld)
+                    return _REFUSED
+            if "value" not in raw:
+                self.add("the value table needs 'value' (and may give 'source' and"
+                         " 'tolerance')", calc=calc, field=f"{fld}.value")
+                return _REFUSED
+            source, tolerance = raw.get("source"), raw.get("tolerance")
+            if source is not None:
+                problem = (text_problem(source, "source") if isinstance(source, str)
+                           else "expected text naming the document the value comes from")
+                if problem or not str(source).strip():
+                    self.add(str(problem or "the source is empty"), calc=calc,
+                             field=f"{fld}.source")
+                    return _REFUSED
+                self._sources[f"{table}.{spec.name}"] = source
+            raw = raw["value"]
+        spread_allowed = spec.kind == "quantity" and table == "inputs" and spec.rangeable
+        if spec.kind == "quantity":
+            try:
+                spread = parse_spread(raw, spec.dimension, tolerance)
+            except UnitProblem as exc:
+                self.add(str(exc), calc=calc, field=fld if tolerance is None
+                         else f"{fld}.tolerance")
+                return _REFUSED
+            if spread is not None:
+                if not spread_allowed:
+                    what = ("a criterion" if table == "criteria" else
+                            f"input '{spec.name}' of this calc type")
+                    self.add(f"{what} takes one value, not a range or a tolerance",
+                             calc=calc, field=fld)
+                    return _REFUSED
+                try:
+                    for end in (spread.low, spread.high):
+                        self._range(end, spec)
+                except UnitProblem as exc:
+                    self.add(f"the {spread.kind} {spread.text!r} leaves the accepted values:"
+                             f" {exc}", calc=calc, field=fld)
+                    return _REFUSED
+                self._spreads[spec.name] = spread
+                return _Parsed(spread.nominal)
+        elif tolerance is not None:
+            self.add(f"a tolerance applies to a quantity, not to {spec.kind} input"
+                     f" '{spec.name}'", calc=calc, field=f"{fld}.tolerance")
+            return _REFUSED
+        return raw
+
     def _one(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> Any:
+        if isinstance(raw, _Parsed):  # the nominal of a range or a tolerance, checked
+            return raw.value
         if spec.kind == "table":
             return self._table(raw, spec, calc, fld)
         if spec.kind == "file":

@@ -180,6 +180,19 @@ def unit_pattern(dimension: str) -> str:
     return rf"^\s*{_NUMBER}(?:\s*(?:{forms})){optional}\s*$"
 
 
+@functools.cache
+def spread_pattern(dimension: str) -> str:
+    """A range ("900 to 1800 rpm") or a tolerance ("350 kN/m ± 15 %", "12 mm ± 0.5 mm")
+    of ``dimension``, as the parser reads them."""
+    forms = "|".join(_form(f) for f in UNIT_FORMS[dimension])
+    unit = rf"(?:\s*(?:{forms}))"
+    need = "?" if dimension in ("dimensionless", "angle") else ""
+    ranged = rf"{_NUMBER}{unit}?\s+to\s+{_NUMBER}{unit}{need}"
+    toleranced = (rf"{_NUMBER}{unit}{need}\s*(?:±|\+/-|\+-)\s*{_NUMBER}"
+                  rf"(?:\s*(?:%|percent)|{unit}{need})")
+    return rf"^\s*(?:{ranged}|{toleranced})\s*$"
+
+
 # ---------------------------------------------------------------- values
 
 
@@ -277,9 +290,35 @@ def _value_schema(spec: InputSpec) -> dict[str, Any]:
     return s
 
 
-def _table(specs: tuple[InputSpec, ...]) -> dict[str, Any]:
+def _wrapped(spec: InputSpec, inputs: bool) -> dict[str, Any]:
+    """An input's value, plain or as a table { value, source, tolerance }; a quantity
+    input may carry a range or a tolerance in its text."""
+    plain = _value_schema(spec)
+    if spec.kind == "table":
+        return plain
+    values = [plain]
+    spread = spec.kind == "quantity" and inputs and spec.rangeable
+    if spread:
+        values.append({"type": "string", "allOf": [{"$ref": f"#/$defs/spread-{spec.dimension}"}],
+                       "description": plain.get("description", "") + "; a range (\"a to b"
+                       " unit\") or a tolerance (\"value ± 15 %\")"})
+    table_props: dict[str, Any] = {
+        "value": {"anyOf": list(values)} if len(values) > 1 else plain,
+        "source": {"type": "string", "pattern": r"\S",
+                   "description": "the document the value comes from"}}
+    if spread:
+        table_props["tolerance"] = {"type": "string", "description": "\"± 15 %\","
+                                    " \"+10 % / -5 %\" or \"± 0.5 mm\""}
+    values.append({"type": "object", "additionalProperties": False, "required": ["value"],
+                   "properties": table_props})
+    out = {"anyOf": values, "description": plain.get("description", spec.description)}
+    out.update((k, plain[k]) for k in ("examples", "default") if k in plain)
+    return out
+
+
+def _table(specs: tuple[InputSpec, ...], inputs: bool = True) -> dict[str, Any]:
     table: dict[str, Any] = {"type": "object", "additionalProperties": False,
-                             "properties": {s.name: _value_schema(s) for s in specs}}
+                             "properties": {s.name: _wrapped(s, inputs) for s in specs}}
     required = [s.name for s in specs if s.required and s.default is None]
     if required:
         table["required"] = required
@@ -339,7 +378,7 @@ def _calc_variant(name: str, ct: Any) -> dict[str, Any]:
             "title": _text(True),
             "notes": _text(False),
             "inputs": _table(ct.inputs),
-            "criteria": _table(ct.criteria),
+            "criteria": _table(ct.criteria, inputs=False),
         },
     }
 
@@ -368,8 +407,10 @@ def job_schema(plugins: PluginSet) -> dict[str, Any]:
                          "oneOf": variants} if variants else False,
                      "x-unique-calc-ids": True},
         },
-        "$defs": {f"unit-{d}": {"type": "string", "pattern": unit_pattern(d)}
-                  for d in sorted(DIMENSIONS)},
+        "$defs": {**{f"unit-{d}": {"type": "string", "pattern": unit_pattern(d)}
+                     for d in sorted(DIMENSIONS)},
+                  **{f"spread-{d}": {"type": "string", "pattern": spread_pattern(d)}
+                     for d in sorted(DIMENSIONS)}},
         "x-calc-keys": sorted(CALC_KEYS),
         "x-known-differences": KNOWN_DIFFERENCES,
     }

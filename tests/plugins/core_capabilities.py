@@ -12,6 +12,7 @@ from __future__ import annotations
 import csv
 import io
 import os
+from dataclasses import dataclass
 
 from reportgen import (
     CalcType,
@@ -124,6 +125,23 @@ class Rows(CalcType):
         return [VerificationRow(quantity="total_stiffness", closed_form=value,
                                 independent=again, tolerance=1e-12, method="sorted sum",
                                 unit="stiffness")]
+
+
+@dataclass(frozen=True)
+class Limit:
+    """A criterion as a plugin may register one: the core needs name, title, source."""
+
+    name: str
+    title: str
+    source: str
+    value: float
+    aliases: tuple[str, ...] = ()
+
+
+@hookimpl
+def reportgen_register_criteria(context):
+    return [Limit(name="Fixture-limit-A", title="A fixture limit", source="Test fixture",
+                  value=1.0, aliases=("fixture a",))]
 
 
 @hookimpl
