@@ -80,6 +80,15 @@ def _parser() -> argparse.ArgumentParser:
     df.add_argument("new", type=Path)
     common(df)
 
+    pv = sub.add_parser("preview", help="serve a job's package as a web page that updates"
+                        " on every save (computation and HTML only)")
+    pv.add_argument("job", type=Path, help="the job file")
+    pv.add_argument("--port", type=int, default=None, help="port (default: a free one)")
+    pv.add_argument("--host", default=None,
+                    help="address to serve on (default 127.0.0.1; any other is reachable"
+                    " from the network)")
+    common(pv)
+
     sc = sub.add_parser("completion", help="print a shell completion script (bash or zsh)")
     sc.add_argument("shell", choices=("bash", "zsh"))
     common(sc)
@@ -229,6 +238,10 @@ def _dispatch(args: argparse.Namespace) -> int:
         from reportgen.cli.commands import diff_command
 
         return diff_command(args.old, args.new)
+    if cmd == "preview":
+        from reportgen.cli.preview import preview_command
+
+        return preview_command(args.job, args.host, args.port)
     if cmd == "completion":
         import shtab  # only here: start-up stays light
 

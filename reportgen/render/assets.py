@@ -12,7 +12,7 @@ from __future__ import annotations
 import hashlib
 import json
 import re
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
@@ -149,22 +149,40 @@ def render_assets(doc: Document, *, cache_dir: Path | None = None,
                   use_cache: bool = True) -> Assets:
     """{block: data URI} for every figure and equation of ``doc``, drawn here one by one
     (the plugin kit's form: one HTML string with everything in it)."""
-    store = asset_store(cache_dir, use_cache)
+    out, _ = drawn_assets(doc, asset_store(cache_dir, use_cache),
+                          lambda payload, key, mime: data_uri(payload or b"", mime))
+    return out
+
+
+def drawn_assets(doc: Document, store: Store,
+                 url_for: Callable[[bytes | None, str, str], str],
+                 later: dict[str, AssetJob] | None = None,
+                 ) -> tuple[Assets, dict[str, bytes]]:
+    """Every figure and equation of ``doc`` drawn here (or taken from ``store``):
+    ({block: ``url_for(payload, key, mime)``}, {key: payload}), and the math font's style
+    sheet pointing at its own URL. With ``later``, what the store does not hold is not
+    drawn but listed there by key (payload None): the live preview draws it when the
+    page asks for it, so the numbers show before the drawings are done."""
     out = Assets()
     drawn: dict[str, bytes] = {}
     units = doc.info.units
     for kind, block in iter_asset_blocks(doc):
         key = asset_key(block, units)
-        if key not in drawn:
+        if key not in drawn and (later is None or key not in later):
             payload = store.get(key)
-            if payload is None:
+            if payload is None and later is not None:
+                later[key] = (kind, block, units)
+            elif payload is None:
                 payload = draw((kind, block, units))
                 store.put(key, payload)
-            drawn[key] = payload
-        out[block] = data_uri(drawn[key])
+            if payload is not None:
+                drawn[key] = payload
+        out[block] = url_for(drawn.get(key), key, "image/svg+xml")
     if any(kind == "equation" for kind, _ in iter_asset_blocks(doc)):
-        out.css = math_font_css(data_uri(math_font(store), "font/ttf"))
-    return out
+        font = math_font(store)
+        drawn[math_font_key()] = font
+        out.css = math_font_css(url_for(font, math_font_key(), "font/ttf"))
+    return out, drawn
 
 
 def math_font(store: Store) -> bytes:
