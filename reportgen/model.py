@@ -351,6 +351,8 @@ class Document:
     schedule: tuple[ScheduleItem, ...] = ()
     schedule_source: str = ""
     schedule_results: tuple[str, ...] = ()
+    #: against the previous revision: (tag, what happened, what moved) per changed tag
+    schedule_changes: tuple[tuple[str, str, str], ...] = ()
 
     @property
     def schedule_ids(self) -> frozenset[str]:

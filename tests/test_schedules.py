@@ -234,3 +234,51 @@ def test_a_schedule_outside_the_job_folder_is_refused(tmp_path, plugins):
     with pytest.raises(JobError) as err:
         load_job(schedule_job(tmp_path / "jobs", "../equipment.csv"), plugins)
     assert "schedule.file" in str(err.value.problems[0])
+
+
+def test_split_builds_a_package_per_row_that_verify_reruns(tmp_path):
+    rows = ROWS[:2]
+    write_csv(tmp_path / "equipment.csv", rows=rows)
+    job = schedule_job(tmp_path, "equipment.csv")
+    out = tmp_path / "out"
+    r = subprocess.run([sys.executable, "-m", "reportgen", "build", str(job), "--split",
+                        "--jobs", "2", "--out", str(out)], capture_output=True, text=True,
+                       timeout=600)
+    assert r.returncode == 0, r.stderr
+    cn = DEFAULT_PACKAGE["calc_number"]
+    rev = DEFAULT_PACKAGE["revision"]
+    names = sorted(p.name for p in out.iterdir())
+    assert names == sorted([f"{cn}-P-1-{rev}.pdf", f"{cn}-P-1-{rev}.results.json",
+                            f"{cn}-P-10-{rev}.pdf", f"{cn}-P-10-{rev}.results.json",
+                            "register.json", "register.pdf"])
+    v = subprocess.run([sys.executable, "-m", "reportgen", "verify",
+                        str(out / f"{cn}-P-10-{rev}.pdf")], capture_output=True, text=True,
+                       timeout=300)
+    assert v.returncode == 0, v.stdout + v.stderr
+    import json
+
+    alone = json.loads((out / f"{cn}-P-10-{rev}.results.json").read_text(encoding="utf-8"))
+    assert alone["package"]["calc_number"] == f"{cn}-P-10"
+    assert [c["id"] for c in alone["calcs"]] == ["p-10"]
+
+
+def test_a_revision_lists_added_removed_and_changed_tags(tmp_path, plugins):
+    from reportgen.package.compare import schedule_changes
+
+    (tmp_path / "a").mkdir()
+    (tmp_path / "b").mkdir()
+    write_csv(tmp_path / "a" / "equipment.csv")
+    before = results_data(compute_document(
+        load_job(schedule_job(tmp_path / "a", "equipment.csv"), plugins), plugins))
+    rows = [list(r) for r in ROWS if r[0] != "EF-3"]  # EF-3 removed
+    rows[2][7] = 50  # AHU-2 on 50 mm springs: passes now
+    rows.append(["CT-1", "Cooling tower fan", "Roof", "springs", 5200, 480, 8, 50, ""])
+    write_csv(tmp_path / "b" / "equipment.csv", rows=rows)
+    after = results_data(compute_document(
+        load_job(schedule_job(tmp_path / "b", "equipment.csv"), plugins), plugins))
+    changes = {tag: (what, moved) for tag, what, moved in schedule_changes(before, after)}
+    assert set(changes) == {"AHU-2", "CT-1", "EF-3"}
+    assert changes["EF-3"][0] == "removed" and changes["CT-1"][0] == "added"
+    what, moved = changes["AHU-2"]
+    assert what == "changed" and "status FAIL → PASS" in moved
+    assert "static deflection 0.01 → 0.05 m (SI)" in moved
