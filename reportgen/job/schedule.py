@@ -242,8 +242,6 @@ def _rows(reader: _Reader, grid: list[list[Any]], name: str, data: bytes,
         elif key in criteria:
             columns.append((j, key, unit, "criteria"))
         else:
-            from reportgen.job.load import _nearest
-
             known = sorted(inputs) + sorted(criteria)
             reader.bad(f"header '{head}' names no input or criterion of calc type"
                        f" '{reg.name}'{_nearest(key, known)}; its inputs: "
@@ -316,6 +314,13 @@ def _rows(reader: _Reader, grid: list[list[Any]], name: str, data: bytes,
         return None
     return Schedule(path=name, sheet=reader.sheet, data=data, calcs=tuple(calcs),
                     items=tuple(items), cells=cells)
+
+
+def _nearest(word: str, options: list[str]) -> str:
+    import difflib
+
+    close = difflib.get_close_matches(word, options, n=1)
+    return f" (did you mean '{close[0]}'?)" if close else ""
 
 
 def _text(value: Any) -> str:
