@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import re
 from dataclasses import dataclass, field
 from typing import Any, Literal
 
@@ -271,6 +272,18 @@ class Section:
     sources: tuple[Source, ...] = ()
     verification_cases: tuple[str, ...] = ()
 
+    def result(self, key: str) -> ResultRow | None:
+        return next((r for r in self.results if r.key == key), None)
+
+    @property
+    def governing_check(self) -> Check | None:
+        """The check that decides the calc: the most exceeded failing one, else the
+        passing one closest to its limit (value over limit, or limit over value for a
+        minimum); None without design checks."""
+        design = [c for c in self.checks if c.status != "info"]
+        pool = [c for c in design if c.status == "fail"] or design
+        return max(pool, key=_utilisation) if pool else None
+
 
 @dataclass(**_frozen)
 class RevisionEntry:
@@ -299,6 +312,31 @@ class PackageInfo:
     firm: str = ""
 
 
+def _utilisation(c: Check) -> float:
+    if c.value is None or c.limit is None:
+        return 0.0
+    v, lim = abs(c.value.value), abs(c.limit.value)
+    if c.comparison in ("<=", "<"):
+        return v / lim if lim else math.inf
+    if c.comparison in (">=", ">"):
+        return lim / v if v else math.inf
+    return 0.0
+
+
+@dataclass(**_frozen)
+class ScheduleItem:
+    """One row of an equipment schedule: the calc it became and the columns the
+    schedule shows but never computes with."""
+
+    tag: str
+    calc_id: str
+    row: int
+    description: str = ""
+    location: str = ""
+    mounting: str = ""
+    notes: str = ""
+
+
 @dataclass(**_frozen)
 class Document:
     info: PackageInfo
@@ -308,6 +346,37 @@ class Document:
     changes: tuple[str, ...] = ()
     model_version: int = MODEL_VERSION
     extra: tuple[tuple[str, str], ...] = field(default=())
+    #: an equipment schedule's rows, in the sheet's order, where it came from, and the
+    #: result keys its summary shows for each row
+    schedule: tuple[ScheduleItem, ...] = ()
+    schedule_source: str = ""
+    schedule_results: tuple[str, ...] = ()
+    #: against the previous revision: (tag, what happened, what moved) per changed tag
+    schedule_changes: tuple[tuple[str, str, str], ...] = ()
+
+    @property
+    def schedule_ids(self) -> frozenset[str]:
+        return frozenset(i.calc_id for i in self.schedule)
+
+    @property
+    def schedule_methods(self) -> tuple[Section, ...]:
+        """The first schedule item of each calc type: whose method is printed once."""
+        seen: dict[str, Section] = {}
+        for s in self.sections:
+            if s.calc_id in self.schedule_ids and s.plugin not in seen:
+                seen[s.plugin] = s
+        return tuple(seen.values())
+
+    def section_of(self, calc_id: str) -> Section | None:
+        return next((s for s in self.sections if s.calc_id == calc_id), None)
+
+    @property
+    def schedule_by_tag(self) -> tuple[ScheduleItem, ...]:
+        """The schedule's rows in the order of their tags (P-2 before P-10)."""
+        def natural(item: ScheduleItem) -> list[Any]:
+            return [(0, int(t), "") if t.isdigit() else (1, 0, t.casefold())
+                    for t in re.split(r"(\d+)", item.tag) if t]
+        return tuple(sorted(self.schedule, key=natural))
 
     @property
     def checks(self) -> tuple[tuple[Section, Check], ...]:

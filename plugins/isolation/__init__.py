@@ -116,6 +116,7 @@ class Isolation(CalcType):
                   required=False, positive=True),
     )
     sources = (THOMSON, RAO, HARRIS)
+    schedule_results = ("static_deflection", "natural_frequency", "isolation_efficiency")
     verification_cases = (
         VerificationCase(id="C1_required_isolation_90pct_zeta0",
                          description="Undamped mounts for 90 % isolation at 1450 rpm",

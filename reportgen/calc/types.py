@@ -30,6 +30,9 @@ class CalcType:
     verification_cases: ClassVar[tuple[VerificationCase, ...]] = ()
     #: Largest number of points in any generated time or frequency series.
     max_points: ClassVar[int] = 20000
+    #: The result keys an equipment schedule's summary shows for each row (empty: the
+    #: calc's first three key results).
+    schedule_results: ClassVar[tuple[str, ...]] = ()
 
     def validate(self, inputs: Mapping[str, Any], given: frozenset[str],
                  criteria: Mapping[str, Any]) -> Sequence[tuple[str, str]]:

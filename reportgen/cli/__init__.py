@@ -106,6 +106,10 @@ def _build_flags(b: argparse.ArgumentParser) -> None:
     b.add_argument("--final", action="store_true",
                    help="refuse unless checked, approved, verified and every check passes")
     b.add_argument("--html", action="store_true", help="also write the self-contained HTML")
+    if b.prog.endswith(" build"):
+        b.add_argument("--split", action="store_true",
+                       help="an equipment schedule: one package per row (calc number"
+                       " <calc_number>-<tag>) and the set's register")
     b.add_argument("--no-cache", action="store_true", help="do not read or write the asset cache")
     b.add_argument("--jobs", type=int, default=None,
                    help="worker processes (default: the number of cores)")

@@ -83,6 +83,16 @@ def sample_jobs_dir() -> Path:
     return Path(str(resources.files("reportgen_samples")))
 
 
+def _schedule_rows(path: Path) -> int:
+    """How many rows the job's schedule has (for the progress bar; 0 if unknown)."""
+    from reportgen.job.load import load_job
+
+    try:
+        return len(load_job(path, load_plugins()).schedule)
+    except ReportgenError:
+        return 0  # build_split loads it again and reports the problem
+
+
 def build_command(args) -> int:
     from reportgen.pipeline.plan import BuildOptions
 
@@ -107,16 +117,27 @@ def build_command(args) -> int:
         from reportgen.pipeline.dask import require_dask
 
         require_dask()  # the install hint now, before anything is built
-    if target.is_dir():
+    split = bool(getattr(args, "split", False))
+    if split and not target.is_file():
+        raise JobError(Problem(str(target), "--split builds the rows of one job file's"
+                               " equipment schedule; name the job file"))
+    if target.is_dir() or split:
         from reportgen.cli.progress import Progress
         from reportgen.pipeline.register import REGISTER_JSON, REGISTER_PDF
-        from reportgen.pipeline.sets import build_folder
+        from reportgen.pipeline.sets import build_folder, build_split
 
-        progress = Progress(len(job_files([target])), "building")
+        if split:
+            progress = Progress(_schedule_rows(target), "building rows")
+        else:
+            progress = Progress(len(job_files([target])), "building")
         try:
-            done = build_folder(target, opts, workers=jobs, executor=executor,
-                                scheduler=scheduler, demo=args.command == "demo",
-                                on_done=progress.update)
+            if split:
+                done = build_split(target, opts, workers=jobs, executor=executor,
+                                   scheduler=scheduler, on_done=progress.update)
+            else:
+                done = build_folder(target, opts, workers=jobs, executor=executor,
+                                    scheduler=scheduler, demo=args.command == "demo",
+                                    on_done=progress.update)
         finally:
             progress.close()
         for note in done.notes:

@@ -75,7 +75,9 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
             software.append((f"calc type {reg.name}", reg.package,
                              reg.calc_type.version))
     doc = Document(info=job.info, revision_history=job.revision_history,
-                   sections=tuple(sections), software=tuple(software))
+                   sections=tuple(sections), software=tuple(software),
+                   schedule=job.schedule, schedule_source=job.schedule_source,
+                   schedule_results=_schedule_results(job, plugins, sections))
     return apply_transforms(doc)
 
 
@@ -297,3 +299,13 @@ def _equation_problem(eq: Equation) -> str:
         return (f"equation {eq.name} = {eq.expression}: its operands give {again:.6g}, but"
                 f" the block states {eq.result.value:.6g}")
     return ""
+
+
+def _schedule_results(job: Job, plugins: PluginSet, sections: list[Section]) -> tuple[str, ...]:
+    """The result keys a schedule's summary shows: what the calc type names, else the
+    first three key results of its first row."""
+    if not job.schedule:
+        return ()
+    first = next(s for s in sections if s.calc_id == job.schedule[0].calc_id)
+    named = plugins.calcs[first.plugin].calc_type.schedule_results
+    return tuple(named) or tuple(r.key for r in first.results if r.key_result)[:3]

@@ -23,6 +23,33 @@ def _q(q: Quantity | None) -> dict[str, Any] | None:
 
 
 def results_data(doc: Document) -> dict[str, Any]:
+    out = _results(doc)
+    if doc.schedule:
+        out["schedule"] = schedule_rows(doc)
+    return out
+
+
+def schedule_rows(doc: Document) -> dict[str, Any]:
+    """The schedule as its summary shows it: one row per tag, in tag order."""
+    rows = []
+    for item in doc.schedule_by_tag:
+        s = doc.section_of(item.calc_id)
+        assert s is not None
+        g = s.governing_check
+        rows.append({
+            "tag": item.tag, "calc": item.calc_id, "row": item.row,
+            "description": item.description, "location": item.location,
+            "mounting": item.mounting, "notes": item.notes,
+            "results": {k: _q(r.quantity) for k in doc.schedule_results
+                        if (r := s.result(k)) is not None},
+            "governing_check": None if g is None else g.id,
+            "status": "info" if g is None else g.status,
+        })
+    return {"source": doc.schedule_source, "results": list(doc.schedule_results),
+            "rows": rows}
+
+
+def _results(doc: Document) -> dict[str, Any]:
     info = doc.info
     checks = doc.design_checks
     return {

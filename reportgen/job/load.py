@@ -22,7 +22,7 @@ from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
-from reportgen.model import PackageInfo, RevisionEntry
+from reportgen.model import PackageInfo, RevisionEntry, ScheduleItem
 from reportgen.units import DIMENSIONS, Spread, UnitProblem, parse_quantity, parse_spread
 
 MAX_JOB_BYTES = 1_000_000
@@ -123,6 +123,8 @@ class Job:
     previous_package: Path | None = None
     raw: Mapping[str, Any] = field(default_factory=dict)
     attachments: tuple[JobAttachment, ...] = ()
+    schedule: tuple[ScheduleItem, ...] = ()  # the rows of an equipment schedule
+    schedule_source: str = ""
 
     @property
     def stem(self) -> str:
@@ -252,9 +254,10 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     problems: list[Problem] = []
     v = _Validator(fname, problems, archived=archived, folder=path.parent)
     for key in raw:
-        if key not in ("package", "calc"):
-            v.add(f"unknown top-level table '{key}'{_nearest(key, ['package', 'calc'])};"
-                  " expected [package] and [[calc]]", field=key)
+        if key not in ("package", "calc", "schedule"):
+            v.add(f"unknown top-level table '{key}'"
+                  f"{_nearest(key, ['package', 'calc', 'schedule'])};"
+                  " expected [package], [[calc]] and an optional [schedule]", field=key)
     pkg = raw.get("package")
     if not isinstance(pkg, dict):
         v.add("missing [package] table (title, job_number, calc_number, revision ...)",
@@ -266,7 +269,11 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     if not isinstance(calcs_raw, list) or not all(isinstance(c, dict) for c in calcs_raw):
         v.add("'calc' must be an array of tables: write each calc as [[calc]]", field="calc")
         calcs_raw = []
-    if not calcs_raw and isinstance(raw.get("calc", []), list):  # absent, or calc = []
+    schedule = None
+    if "schedule" in raw:
+        schedule = _schedule(raw["schedule"], path, plugins, problems)
+    if (not calcs_raw and schedule is None and "schedule" not in raw
+            and isinstance(raw.get("calc", []), list)):  # absent, or calc = []
         v.add("the job has no [[calc]] tables; a package needs at least one calc",
               field="calc")
     if len(calcs_raw) > MAX_CALCS:
@@ -278,13 +285,62 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         spec = v.calc(c, index, plugins, seen)
         if spec is not None:
             calcs.append(spec)
+    if schedule is not None:
+        calcs.extend(_schedule_calcs(v, schedule, plugins, seen, len(calcs_raw)))
+        attachments = _with_schedule(v, attachments, schedule)
     attachments = v.with_data_files(attachments, calcs)
     if problems:
         raise JobError(problems)
     assert info is not None
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
                calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
-               raw=raw, attachments=attachments)
+               raw=raw, attachments=attachments,
+               schedule=schedule.items if schedule is not None else (),
+               schedule_source=schedule.where() if schedule is not None else "")
+
+
+def _schedule(table: Any, path: Path, plugins: PluginSet,
+              problems: list[Problem]) -> Any:
+    from reportgen.job.schedule import read_schedule
+
+    if not isinstance(table, dict):
+        problems.append(Problem(str(path), "expected a table [schedule] with the file of"
+                                " the equipment schedule", field="schedule"))
+        return None
+    return read_schedule(table, path.parent, str(path), plugins, problems)
+
+
+def _schedule_calcs(v: _Validator, schedule: Any, plugins: PluginSet,
+                    seen: dict[str, int], first: int) -> list[CalcSpec]:
+    """Each row's calc, checked by the one validator; a problem with a value the row
+    gave is reported at the row's cell of the schedule."""
+    out = []
+    for index, c in enumerate(schedule.calcs):
+        before = len(v.problems)
+        spec = v.calc(c, first + index, plugins, seen)
+        for k in range(before, len(v.problems)):
+            pr = v.problems[k]
+            cell = schedule.cells.get((pr.calc, pr.field))
+            if cell is not None or pr.field == "id":  # a value, or the tag, of the row
+                where = schedule.where(cell or schedule.tag_cell(pr.calc))
+                v.problems[k] = Problem(where, pr.message, calc=pr.calc, field=pr.field)
+        if spec is not None:
+            out.append(spec)
+    return out
+
+
+def _with_schedule(v: _Validator, attachments: tuple[JobAttachment, ...],
+                   schedule: Any) -> tuple[JobAttachment, ...]:
+    """The schedule file embedded beside the job, as a data file is."""
+    base = schedule.path.replace("\\", "/").rsplit("/", 1)[-1]
+    for a in attachments:
+        if a.path == schedule.path:
+            return attachments
+        if a.name == base or base in RESERVED_NAMES:
+            v.add(f"the schedule {schedule.path!r} would be embedded as '{base}', which"
+                  f" {a.path!r} already uses; rename one", field="schedule.file")
+            return attachments
+    return (*attachments, JobAttachment(path=schedule.path, name=base, data=schedule.data))
 
 
 def job_files(targets: list[Path]) -> list[Path]:

@@ -394,8 +394,23 @@ def job_schema(plugins: PluginSet) -> dict[str, Any]:
         "title": "reportgen job file",
         "type": "object",
         "additionalProperties": False,
-        "required": ["package", "calc"],
+        "required": ["package"],
+        "anyOf": [{"required": ["calc"]}, {"required": ["schedule"]}],
         "properties": {
+            "schedule": {
+                "type": "object", "additionalProperties": False, "required": ["file", "calc"],
+                "description": "an equipment schedule (.xlsx or .csv): one calc per row",
+                "properties": {
+                    "file": {"type": "string", "pattern": r"(?i)\.(xlsx|csv)$"},
+                    "sheet": {"type": "string", "minLength": 1},
+                    "calc": {"type": "object", "additionalProperties": False,
+                             "required": ["plugin"],
+                             "properties": {
+                                 "plugin": {"enum": plugins.names()},
+                                 "title": {"type": "string", "pattern": r"\{tag\}"},
+                                 "notes": {"type": "string"},
+                                 "inputs": {"type": "object"},
+                                 "criteria": {"type": "object"}}}}},
             "package": {"type": "object", "additionalProperties": False,
                         "required": [k for k, req in PACKAGE_KEYS.items() if req] + ["date"],
                         "properties": package_props},

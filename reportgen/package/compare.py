@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -293,3 +294,40 @@ def verify_rows(embedded: dict[str, Any], rebuilt: dict[str, Any],
             if c == cid:
                 rows.append((cid, "independent verification", fmt(fa), fmt(fb), ""))
     return rows
+
+
+def schedule_changes(previous: dict[str, Any], new: dict[str, Any]
+                     ) -> tuple[tuple[str, str, str], ...]:
+    """Tag by tag, against the previous revision's schedule: (tag, "added" | "removed" |
+    "changed", what moved in words: the status and each result the schedule shows)."""
+    def rows(results: dict[str, Any]) -> dict[str, dict[str, Any]]:
+        return {r["tag"]: r for r in (results.get("schedule") or {}).get("rows", [])}
+
+    old, cur = rows(previous), rows(new)
+    out: list[tuple[str, str, str]] = []
+    for tag in sorted(set(old) | set(cur), key=_natural):
+        a, b = old.get(tag), cur.get(tag)
+        if a is None and b is not None:
+            out.append((tag, "added", f"status {b['status'].upper()}"))
+        elif b is None and a is not None:
+            out.append((tag, "removed", f"was {a['status'].upper()}"))
+        elif a is not None and b is not None:
+            moved = []
+            if a["status"] != b["status"]:
+                moved.append(f"status {a['status'].upper()} → {b['status'].upper()}")
+            for key, q in b["results"].items():
+                p = a["results"].get(key)
+                if p is None or p.get("value") is None or q.get("value") is None:
+                    continue
+                if not math.isclose(p["value"], q["value"], rel_tol=1e-9):
+                    unit = "" if q.get("unit") in (None, "", "1") else f" {q['unit']}"
+                    moved.append(f"{key.replace('_', ' ')} {num(p['value'])} →"
+                                 f" {num(q['value'])}{unit} (SI)")
+            if moved:
+                out.append((tag, "changed", "; ".join(moved)))
+    return tuple(out)
+
+
+def _natural(tag: str) -> list[tuple[int, int, str]]:
+    return [(0, int(t), "") if t.isdigit() else (1, 0, t.casefold())
+            for t in re.split(r"(\d+)", tag) if t]

@@ -85,6 +85,18 @@ def changes_since(doc: Document, job: Job) -> Document:
     if prev_pkg.get("calc_number") != job.info.calc_number:
         lines.insert(0, f"The previous package is calc {prev_pkg.get('calc_number', '?')},"
                         f" not {job.info.calc_number}: check [package] previous_package.")
+    if doc.schedule:
+        import dataclasses
+
+        from reportgen.package.compare import schedule_changes
+
+        doc = dataclasses.replace(doc, schedule_changes=schedule_changes(
+            previous.results, results_data(doc)))
+        # the rows' changes are the table's: the lines keep the rest of the job
+        ids = doc.schedule_ids | {r.get("calc") for r in (previous.results.get("schedule")
+                                                          or {}).get("rows", [])}
+        lines = [ln for ln in lines if not any(ln.startswith((f"{i}: ", f"Calc {i} "))
+                                               for i in ids)]
     label = str(prev_pkg.get("revision", "")) or "?"
     if prev_pkg.get("date"):
         label += f" ({prev_pkg['date']})"

@@ -51,6 +51,7 @@ class BuildOptions:
     template_dir: Path | None = None  # overrides the job's [package] template_dir
     self_check: bool = True
     split: bool = False  # compute in a forked child, lay out here (pipeline.scheduler)
+    row: str | None = None  # an equipment schedule's row (its tag), built as its own package
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -147,6 +148,10 @@ def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
     """Load the job, compute every calc once, apply the transforms, write the results and
     the HTML: everything before the layout."""
     job = load_job(path, plugins)
+    if opts.row is not None:
+        from reportgen.job.split import row_job
+
+        job = row_job(job, opts.row, plugins)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
     if not opts.force:

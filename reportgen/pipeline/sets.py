@@ -23,9 +23,10 @@ from reportgen.pipeline.register import (
 )
 
 
-def build_one(path: str, opts: dict[str, Any]) -> dict[str, Any]:
+def build_one(path: str, opts: dict[str, Any], label: str | None = None) -> dict[str, Any]:
     """Make one job's package in this process and return its bytes in the outcome; never
-    raises (the outcome is data) and writes nothing: the command commits."""
+    raises (the outcome is data) and writes nothing: the command commits. ``label``
+    names the package in the outcome (a schedule's row: the job file and the tag)."""
     from reportgen.calc.plugin_set import load_plugins
     from reportgen.errors import error_text
     from reportgen.pipeline.plan import make_package
@@ -36,13 +37,13 @@ def build_one(path: str, opts: dict[str, Any]) -> dict[str, Any]:
     try:
         made = make_package(Path(path), load_plugins(), options)
     except ReportgenError as exc:
-        return {"job": path, "ok": False, "exit_code": int(exc.exit_code),
+        return {"job": label or path, "ok": False, "exit_code": int(exc.exit_code),
                 "error": error_text(exc)}
     except Exception as exc:  # a bug in one job must not stop the set
-        return {"job": path, "ok": False, "exit_code": int(ExitCode.FAILURE),
+        return {"job": label or path, "ok": False, "exit_code": int(ExitCode.FAILURE),
                 "error": error_text(exc)}
     pdf = dict(made.outputs)[f"{made.stem}.pdf"]
-    return {"job": path, "ok": True, "exit_code": int(made.exit_code), "stem": made.stem,
+    return {"job": label or path, "ok": True, "exit_code": int(made.exit_code), "stem": made.stem,
             "outputs": made.outputs, "calc_number": made.calc_number,
             "revision": made.revision, "title": made.title, "status": made.status,
             "checks_total": made.checks_total, "checks_failed": made.checks_failed,
@@ -201,7 +202,9 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
                     raise JobError(Problem(str(target), "already exists; reportgen demo"
                                            " replaces files only with --force (or give"
                                            " another --out folder)"))
-        return _build_set(files, opts, workers, executor, scheduler, claim, staged, on_done)
+        opts_dict = worker_options(opts)
+        items = [(str(p.absolute()), opts_dict, str(p)) for p in files]
+        return _build_set(items, opts, workers, executor, scheduler, claim, staged, on_done)
     finally:
         from reportgen.pipeline.commit import discard
 
@@ -211,13 +214,14 @@ def build_folder(folder: Path, opts: BuildOptions, *, workers: int, executor: st
         claim.release()
 
 
-def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: str,
-               scheduler: str | None, claim, staged: dict[str, list],
+def _build_set(items: list[tuple[str, dict[str, Any], str]], opts: BuildOptions,
+               workers: int, executor: str, scheduler: str | None, claim,
+               staged: dict[str, list],
                on_done: Callable[[dict[str, Any]], None] | None) -> SetResult:
+    """Build ``items`` (job path, worker options, label) and commit them as one."""
     from reportgen.pipeline.commit import stage
 
     out_dir = opts.out_dir
-    opts_dict = worker_options(opts)
     if workers > 1 or executor != "local":
         # The packages are built elsewhere; this process lays out only the register at
         # the end. Its renderer loads meanwhile (~0.6 s of CPU spread over the build,
@@ -228,10 +232,7 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
 
         threading.Thread(target=preload_renderer, name="reportgen-preload",
                          daemon=True).start()
-    as_named = {str(p.absolute()): str(p) for p in files}
-
     def done(outcome: dict[str, Any]) -> None:
-        outcome["job"] = as_named.get(outcome["job"], outcome["job"])
         outputs = outcome.pop("outputs", None)
         if outcome.get("ok"):
             outcome["pdf"] = str(out_dir / f"{outcome['stem']}.pdf")
@@ -248,9 +249,8 @@ def _build_set(files: list[Path], opts: BuildOptions, workers: int, executor: st
         if on_done is not None:
             on_done(outcome)
 
-    outcomes = run_tasks(build_one, [(str(p.absolute()), opts_dict) for p in files],
-                         workers=workers, executor=executor, scheduler=scheduler,
-                         on_done=done, cost=_job_size)
+    outcomes = run_tasks(build_one, items, workers=workers, executor=executor,
+                         scheduler=scheduler, on_done=done, cost=_job_size)
     built = _commit_set(outcomes, opts, claim, staged)
     return SetResult(outcomes=outcomes, built=built, notes=list(claim.notes))
 
@@ -327,3 +327,60 @@ def _job_size(item: tuple) -> float:
         return float(Path(item[0]).stat().st_size)
     except OSError:
         return 0.0
+
+
+def build_split(path: Path, opts: BuildOptions, *, workers: int, executor: str = "local",
+                scheduler: str | None = None,
+                on_done: Callable[[dict[str, Any]], None] | None = None) -> SetResult:
+    """Build each row of the equipment schedule of job ``path`` as its own package (calc
+    number ``<calc_number>-<tag>``), in parallel, and commit them and the register as one.
+    The job is loaded (so checked, row by row) once here first."""
+    from reportgen.calc.plugin_set import load_plugins
+    from reportgen.job.load import file_stem, load_job
+    from reportgen.pipeline.commit import (
+        Claim,
+        discard,
+        package_files,
+        preflight,
+        recover,
+        sweep_stale_parts,
+    )
+    from reportgen.pipeline.plan import check_out_dir
+
+    job = load_job(path, load_plugins())
+    if not job.schedule:
+        raise JobError(Problem(str(path), "--split builds an equipment schedule's rows as"
+                               " packages of their own; this job has no [schedule]",
+                               field="schedule"))
+    rows = []
+    for item in job.schedule:
+        calc = f"{job.info.calc_number}-{item.tag}"
+        stem = file_stem(calc, job.info.revision)
+        if stem is None:
+            raise JobError(Problem(job.schedule_source, f"tag {item.tag!r} (row {item.row})"
+                                   " cannot be part of a calc number and a file name; use"
+                                   " letters, digits, '-', '.' and '_'", field="tag"))
+        rows.append((item.tag, calc, stem))
+    out_dir = opts.out_dir
+    check_out_dir(out_dir, path)
+    claim = Claim.open(out_dir)
+    staged: dict[str, list] = {}
+    targets: list[Path] = []
+    try:
+        claim.notes += recover(out_dir)
+        for _tag, calc, stem in rows:
+            claim.package(path, calc, job.info.revision, stem)
+            results, pdf, *html = package_files(out_dir, stem, opts.html)
+            preflight(path, [pdf, results, *html])
+            targets += [pdf, results, *html]
+        preflight(path, [out_dir / REGISTER_JSON, out_dir / REGISTER_PDF])
+        sweep_stale_parts(out_dir, targets)
+        base = worker_options(opts)
+        items = [(str(path.absolute()), {**base, "row": tag}, f"{path}, tag {tag}")
+                 for tag, _, _ in rows]
+        return _build_set(items, opts, workers, executor, scheduler, claim, staged, on_done)
+    finally:
+        for items_ in staged.values():
+            for st in items_:
+                discard(st.temp)
+        claim.release()
