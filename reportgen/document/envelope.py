@@ -408,7 +408,7 @@ def assumption(spec: CalcSpec, extent: Envelope) -> str:
     return ("The design is judged over its operating envelope: " + "; ".join(parts)
             + ". Every range is swept at every corner of the tolerance box and for every"
             f" order ({extent.evaluations} evaluations); each check is judged at its worst"
-            " value and fails if it fails anywhere in the envelope. The working above is"
+            " value and fails if it fails anywhere in the envelope. The working below is"
             " shown at the nominal point.")
 
 
@@ -487,7 +487,7 @@ def envelope_figure(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
         alt=(f"{main.description} against {r.replace('_', ' ')}; it governs"
              f" {g.where or 'at nominal'}."),
         x_label=f"{r.replace('_', ' ').capitalize()} ({xunit})" if xunit else r,
-        panels=(Panel(series=tuple(series), y_label=_short(main.description) + unit,
+        panels=(Panel(series=tuple(series), y_label=_short(main.description, 30) + unit,
                       fills=tuple(fills), hlines=tuple(limit),
                       markers=(Marker(x=gx, y=gy, label="governing"),)),))
 
