@@ -170,3 +170,23 @@ def test_without_ranges_the_envelope_is_never_entered(rg_build, monkeypatch):
     assert "envelope" not in data
     assert all("governing" not in c for c in data["checks"])
     assert all("point" not in v for v in data["verification"])
+
+
+def test_diff_reports_envelope_changes(tmp_path, capsys):
+    from reportgen.cli import main
+    from reportgen.testing import job_toml
+
+    paths = []
+    for name, speed in (("a", "900 rpm"), ("b", "600 to 1200 rpm"), ("c", "750 to 1200 rpm")):
+        path = tmp_path / f"{name}.toml"
+        path.write_text(job_toml(make_job(_isolation(speed))), encoding="utf-8")
+        paths.append(str(path))
+    assert main(["diff", paths[0], paths[1]]) == 0
+    out = capsys.readouterr().out
+    assert "iso: operating envelope added: speed 600 to 1200 rpm." in out
+    assert main(["diff", paths[1], paths[2]]) == 0
+    out = capsys.readouterr().out
+    assert ("iso: operating envelope changed from speed 600 to 1200 rpm to speed 750 to 1200"
+            " rpm.") in out
+    # the efficiency governs at the lowest speed (Thomson & Dahleh §3.5), which moved
+    assert "iso: check efficiency governs at" in out and "at 750 rpm (was" in out
