@@ -141,7 +141,7 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
                        exc) from exc
     verification = _agreed(reg, spec, rows)
     if verification is not None and c.envelope is not None:
-        verification += _envelope_rows(c)
+        verification += _envelope_rows(c, verify)
     inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
                                                 spec.raw_inputs, spec.sources, "inputs"))
     blocks: tuple[Block, ...] = (inputs_block, *_input_tables(ct.inputs, spec.inputs))
@@ -160,14 +160,14 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
         envelope=None if c.envelope is None else c.envelope.envelope)
 
 
-def _envelope_rows(c: Computed) -> tuple[VerificationRow, ...]:
+def _envelope_rows(c: Computed, verify: VerifyHook | None) -> tuple[VerificationRow, ...]:
     """The second method again at the governing point of each failing or tightest check,
     each row naming its point."""
     assert c.envelope is not None
     out: tuple[VerificationRow, ...] = ()
     for ctx, output, at, inputs in c.envelope.verify_at:
         try:
-            rows = c.reg.calc_type.verify(ctx, output)
+            rows = verify(c.reg, ctx, output) if verify else c.reg.calc_type.verify(ctx, output)
         except ReportgenError:
             raise
         except Exception as exc:
