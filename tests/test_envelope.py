@@ -190,3 +190,18 @@ def test_diff_reports_envelope_changes(tmp_path, capsys):
             " rpm.") in out
     # the efficiency governs at the lowest speed (Thomson & Dahleh §3.5), which moved
     assert "iso: check efficiency governs at" in out and "at 750 rpm (was" in out
+
+
+def test_a_check_that_arises_only_near_a_peak_fails_the_calc(rg_plugins):
+    # ζ = 0.004: D_max = 1/(2ζ·sqrt(1 − ζ²)) ≈ 125 (Thomson & Dahleh, Ch. 3) exceeds the
+    # linear model's trusted 100 (common practice, no source) only within ±0.1 % of f_n,
+    # between two sweep points; nominal (5.5 Hz) is far from it
+    calc = json.loads(json.dumps(STEEL_FORCED))
+    calc["inputs"]["damping_ratio"] = 0.004
+    doc = compute(make_job(calc), rg_plugins)
+    validity = _check(doc, "linear-validity")
+    assert validity.status == "fail" and validity.value is None
+    assert validity.governing.nominal_status == "pass"
+    assert validity.governing.value.value == pytest.approx(
+        1 / (2 * 0.004 * math.sqrt(1 - 0.004**2)), rel=5e-3)
+    assert doc.status == "fail"

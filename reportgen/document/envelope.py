@@ -320,6 +320,12 @@ def evaluate(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext, nominal: Cal
             if c is not None:
                 consider(cid, p, c)
 
+    # a check that arises only at a refined point (a linear model's validity near a peak)
+    for p, got in list(ev.cache.items()):
+        for cid, c in got.items():
+            if cid not in ids:
+                ids.append(cid)
+            consider(cid, p, c)
     return _outcome(spec, reg, ctx, nominal, ev, best, ids, sweeps, grid, orders)
 
 
