@@ -499,7 +499,11 @@ def envelope_figure(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
 
 
 def _short(text: str, n: int = 40) -> str:
-    return text if len(text) <= n else text[: n - 1].rstrip() + "…"
+    """At most n characters, cut at a word (an axis label has the room of the plot)."""
+    if len(text) <= n:
+        return text
+    cut = text[: n - 1].rsplit(" ", 1)[0].rstrip(" ,:;(")
+    return cut + "…"
 
 
 def _close_all(a: tuple[float, ...], b: tuple[float, ...]) -> bool:
