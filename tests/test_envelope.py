@@ -205,3 +205,13 @@ def test_a_check_that_arises_only_near_a_peak_fails_the_calc(rg_plugins):
     assert validity.governing.value.value == pytest.approx(
         1 / (2 * 0.004 * math.sqrt(1 - 0.004**2)), rel=5e-3)
     assert doc.status == "fail"
+
+
+def test_an_envelope_too_large_to_evaluate_is_refused(rg_plugins):
+    calc = _isolation("1000 to 1500 rpm", mass="1000 to 1400 kg",
+                      stiffness_per_mount="140 to 160 kN/m",
+                      orders=[1, *[k + 0.5 for k in range(19)]])
+    with pytest.raises(JobError) as err:
+        compute(make_job(calc), rg_plugins)
+    assert any(p.field == "inputs" and "evaluations (at most 20000)" in p.message
+               for p in err.value.problems)

@@ -19,7 +19,7 @@ from typing import Any
 from reportgen.calc.plugin_set import RegisteredCalc
 from reportgen.calc.sheet import CalcContext, CalcOutput
 from reportgen.job.load import CalcSpec
-from reportgen.job.orders import SPEED_INPUT
+from reportgen.job.orders import SPEED_INPUT, SWEEP_POINTS
 from reportgen.model import (
     Assumptions,
     Block,
@@ -44,8 +44,6 @@ from reportgen.units import (
     table_display,
 )
 
-#: points along each range before refinement (odd: the mid-range nominal is one of them)
-SWEEP_POINTS = 41
 #: golden-section steps refining a worst value that lies between two sweep points: the
 #: bracket of two sweep steps shrinks by 0.618^24 (about 1e-5 of it), ample for a
 #: resonance peak within 0.5 % of its true height

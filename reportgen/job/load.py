@@ -21,7 +21,13 @@ from typing import Any
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
-from reportgen.job.orders import SPEED_INPUT, has_running_speed, parse_orders
+from reportgen.job.orders import (
+    MAX_ENVELOPE_POINTS,
+    SPEED_INPUT,
+    envelope_points,
+    has_running_speed,
+    parse_orders,
+)
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
 from reportgen.model import PackageInfo, RevisionEntry
 from reportgen.units import DIMENSIONS, Spread, UnitProblem, parse_quantity, parse_spread
@@ -690,6 +696,14 @@ class _Validator:
                                   stage="validate") from exc
             for fld, msg in cross:
                 self.add(msg, calc=label, field=fld)
+        if len(self.problems) == before and (self._spreads or orders):
+            kinds = [sp.kind for sp in self._spreads.values()]
+            points = envelope_points(kinds.count("range"), kinds.count("tolerance"),
+                                     len(orders))
+            if points > MAX_ENVELOPE_POINTS:
+                self.add(f"the operating envelope would take {points} evaluations (at most"
+                         f" {MAX_ENVELOPE_POINTS}): give fewer ranges, tolerances or orders",
+                         calc=label, field="inputs")
         if len(self.problems) != before:
             return None
         assert isinstance(cid, str) and isinstance(plugin, str)  # no problems were added

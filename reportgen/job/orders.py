@@ -15,6 +15,18 @@ from reportgen.calc.spec import InputSpec
 SPEED_INPUT = "speed"
 MAX_ORDER = 1000.0
 MAX_ORDERS = 32
+#: points along each range of an operating envelope before refinement (odd: the mid-range
+#: nominal is one of them), and the most points an envelope may plan (about a minute)
+SWEEP_POINTS = 41
+MAX_ENVELOPE_POINTS = 20000
+
+
+def envelope_points(ranges: int, tolerances: int, orders: int) -> int:
+    """Points an envelope sweeps before refinement: each range at SWEEP_POINTS, the other
+    ranges at their ends and middle, at the nominal and every corner of the tolerance box,
+    for every order."""
+    per_corner = ranges * SWEEP_POINTS * 3 ** (ranges - 1) if ranges else 1
+    return per_corner * (2**tolerances + 1) * max(orders, 1)
 
 
 def has_running_speed(specs: tuple[InputSpec, ...]) -> bool:
