@@ -65,10 +65,17 @@ def _parse(expression: str) -> ast.expr:
 
 def names_in(expression: str) -> set[str]:
     """Operand names an expression needs (constants and functions excluded)."""
+    return set(_names(expression))
+
+
+@lru_cache(maxsize=512)
+def _names(expression: str) -> frozenset[str]:
+    # cached: an operating envelope computes the same equations hundreds of times
     tree = _parse(expression)
     called = {n.func.id for n in ast.walk(tree)
               if isinstance(n, ast.Call) and isinstance(n.func, ast.Name)}
-    return {n.id for n in ast.walk(tree) if isinstance(n, ast.Name)} - called - set(CONSTANTS)
+    return frozenset({n.id for n in ast.walk(tree) if isinstance(n, ast.Name)} - called
+                     - set(CONSTANTS))
 
 
 def evaluate(expression: str, operands: Mapping[str, float]) -> float:

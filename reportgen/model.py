@@ -95,6 +95,21 @@ class Check:
     limit: Quantity | None = None
     comparison: str = ""  # "<=", ">=", "<", ">", "outside", "" for info
     note: str = ""
+    #: where the check governs over the operating envelope (None: no envelope)
+    governing: Governing | None = None
+
+
+@dataclass(**_frozen)
+class Governing:
+    """A check judged over the operating envelope: its worst value, the status there, the
+    status at nominal, and the point's inputs that differ from nominal (SI; empty at
+    nominal) with the same point in words ("at 912 rpm with k + 15 %")."""
+
+    value: Quantity | None
+    status: Status
+    nominal_status: Status
+    where: str = ""
+    inputs: tuple[tuple[str, Quantity], ...] = ()
 
 
 @dataclass(**_frozen)
@@ -123,6 +138,14 @@ class Band:
 
 
 @dataclass(**_frozen)
+class Fill:
+    x: tuple[float, ...]
+    low: tuple[float, ...]
+    high: tuple[float, ...]
+    label: str = ""
+
+
+@dataclass(**_frozen)
 class Panel:
     series: tuple[Series, ...]
     y_label: str
@@ -131,6 +154,8 @@ class Panel:
     bands: tuple[Band, ...] = ()
     hlines: tuple[tuple[float, str], ...] = ()
     y_range: tuple[float, float] | None = None
+    #: shaded regions between two curves over the same x (a tolerance band)
+    fills: tuple[Fill, ...] = ()
 
 
 @dataclass(**_frozen)
@@ -232,6 +257,10 @@ class VerificationRow:
     method: str
     abs_tolerance: float = 0.0
     unit: str = "dimensionless"
+    #: the envelope point it ran at, in words and as the inputs that differ from nominal
+    #: (SI); empty at nominal
+    point: str = ""
+    point_inputs: tuple[tuple[str, Quantity], ...] = ()
 
     @property
     def rel_difference(self) -> float:
@@ -256,6 +285,28 @@ class Source:
 
 
 @dataclass(**_frozen)
+class EnvelopeInput:
+    """One input given with a range or a tolerance, as evaluated (SI)."""
+
+    name: str
+    symbol: str
+    kind: str  # "range" | "tolerance"
+    text: str  # as written
+    low: Quantity
+    nominal: Quantity
+    high: Quantity
+
+
+@dataclass(**_frozen)
+class Envelope:
+    """The extent of an operating envelope and the number of evaluations it took."""
+
+    inputs: tuple[EnvelopeInput, ...]
+    orders: tuple[tuple[float, str], ...]  # (order, label); order 1 is the stated speed
+    evaluations: int
+
+
+@dataclass(**_frozen)
 class Section:
     calc_id: str
     plugin: str
@@ -271,6 +322,8 @@ class Section:
     number: str = ""
     sources: tuple[Source, ...] = ()
     verification_cases: tuple[str, ...] = ()
+    #: the operating envelope it was judged over (None: inputs without ranges or orders)
+    envelope: Envelope | None = None
 
     def result(self, key: str) -> ResultRow | None:
         return next((r for r in self.results if r.key == key), None)
@@ -407,7 +460,8 @@ class Document:
 
 _TYPES = {cls.__name__: cls for cls in (*BLOCK_TYPES, Quantity, InputRow, ResultRow, Series,
                                         Marker, Band, Panel, VerificationRow, Source, Section,
-                                        RevisionEntry, PackageInfo, Document)}
+                                        RevisionEntry, PackageInfo, Document, Governing, Fill,
+                                        EnvelopeInput, Envelope)}
 
 
 def to_json(node: Any) -> Any:

@@ -71,6 +71,8 @@ def job_toml(job: Mapping[str, Any]) -> str:
             return json.dumps(v, ensure_ascii=False)
         if isinstance(v, (list, tuple)):
             return "[" + ", ".join(val(x) for x in v) + "]"
+        if isinstance(v, Mapping):  # an inline table inside an array
+            return "{ " + ", ".join(f"{json.dumps(k)} = {val(x)}" for k, x in v.items()) + " }"
         raise TypeError(f"cannot write {type(v).__name__} to TOML")
 
     def table(prefix: str, t: Mapping[str, Any]) -> None:

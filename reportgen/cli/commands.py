@@ -312,7 +312,14 @@ def extract_command(package: Path, folder: Path) -> int:
 
 def diff_command(old: Path, new: Path) -> int:
     """Print what changed from ``old`` to ``new``; exit 0 (2 when either is invalid)."""
-    from reportgen.package.compare import DIFF_KEYS, compare, moved_text, num, raw_text
+    from reportgen.package.compare import (
+        DIFF_KEYS,
+        compare,
+        envelope_lines,
+        moved_text,
+        num,
+        raw_text,
+    )
     from reportgen.package.revisions import load_side
 
     plugins = load_plugins()
@@ -340,6 +347,7 @@ def diff_command(old: Path, new: Path) -> int:
             f" {moved_text(x, y, r)}" for cid, key, x, y, unit, r in ch.results]),
         ("Check statuses that flipped", [
             f"  {cid:<20} {key:<30} {x.upper()} → {y.upper()}" for cid, key, x, y in ch.checks]),
+        ("Operating envelopes", [f"  {line}" for line in envelope_lines(ch)]),
     )
     for title, rows in sections:
         print(f"\n{title}", file=out)

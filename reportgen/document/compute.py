@@ -5,6 +5,7 @@ This module runs plugins and assembles the document tree; it never renders.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import platform
 from collections.abc import Callable, Mapping
@@ -15,6 +16,7 @@ from reportgen._version import __version__
 from reportgen.calc.plugin_set import PluginSet, RegisteredCalc
 from reportgen.calc.sheet import CalcContext, CalcOutput
 from reportgen.calc.spec import InputSpec
+from reportgen.document import envelope
 from reportgen.document.transforms import apply_transforms
 from reportgen.errors import PluginError, ReportgenError, VerificationError
 from reportgen.job.load import CalcSpec, Job
@@ -46,6 +48,9 @@ class Computed:
     reg: RegisteredCalc
     ctx: CalcContext
     output: CalcOutput
+    #: the operating envelope it was judged over (its output already carries the governed
+    #: checks); None for a calc without ranges, tolerances or orders
+    envelope: envelope.Outcome | None = None
 
 
 def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None = None,
@@ -113,7 +118,15 @@ def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
     if problem:
         raise _failure(reg, spec.id, f"compute returned malformed output: {problem}",
                        "compute")
-    return Computed(spec=spec, reg=reg, ctx=ctx, output=out)
+    if not envelope.wanted(spec):
+        return Computed(spec=spec, reg=reg, ctx=ctx, output=out)
+
+    def failed(at: str, exc: BaseException) -> Exception:
+        return _failure(reg, spec.id, f"compute raised {type(exc).__name__} {at} in the"
+                        f" operating envelope: {exc}", "envelope", exc)
+
+    env = envelope.evaluate(spec, reg, ctx, out, failed)
+    return Computed(spec=spec, reg=reg, ctx=ctx, output=env.output, envelope=env)
 
 
 def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
@@ -128,25 +141,9 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
     except Exception as exc:
         raise _failure(reg, spec.id, f"verify raised {type(exc).__name__}: {exc}", "verify",
                        exc) from exc
-    verification: tuple[VerificationRow, ...] | None = None
-    if rows is not None:
-        rows = tuple(rows)
-        bad = [r for r in rows if not isinstance(r, VerificationRow)]
-        if bad:
-            raise _failure(reg, spec.id, f"verify returned {type(bad[0]).__name__}, not"
-                           " VerificationRow", "verify")
-        disagree = [r for r in rows if not r.agrees]
-        if disagree:
-            about = "" if reg.plugin == reg.name else f"calc type '{reg.name}': "
-            text = "; ".join(
-                f"{r.quantity}: closed form {r.closed_form:.6g}, independent {r.independent:.6g}"
-                f" (relative difference {r.rel_difference:.2e} > tolerance {r.tolerance:.1e})"
-                for r in disagree)
-            raise VerificationError(f"{about}independent verification disagrees: {text}; a"
-                                    " package whose two methods disagree is not issued",
-                                    plugin=reg.plugin, package=reg.package, calc=spec.id,
-                                    stage="verify")
-        verification = rows
+    verification = _agreed(reg, spec, rows)
+    if verification is not None and c.envelope is not None:
+        verification += _envelope_rows(c, verify)
     inputs_block = InputsTable(rows=_input_rows(ct.inputs, spec.inputs, spec.given,
                                                 spec.raw_inputs, spec.sources, "inputs"))
     blocks: tuple[Block, ...] = (inputs_block, *_input_tables(ct.inputs, spec.inputs))
@@ -161,7 +158,53 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
         plugin_package=reg.package, title=spec.title, purpose=out.purpose or ct.purpose,
         blocks=blocks + tuple(out.blocks), results=tuple(out.results),
         checks=tuple(out.checks), verification=verification, notes=spec.notes,
-        sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
+        sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases),
+        envelope=None if c.envelope is None else c.envelope.envelope)
+
+
+def _envelope_rows(c: Computed, verify: VerifyHook | None) -> tuple[VerificationRow, ...]:
+    """The second method again at the governing point of each failing or tightest check,
+    each row naming its point."""
+    assert c.envelope is not None
+    out: tuple[VerificationRow, ...] = ()
+    for ctx, output, at, inputs in c.envelope.verify_at:
+        try:
+            rows = verify(c.reg, ctx, output) if verify else c.reg.calc_type.verify(ctx, output)
+        except ReportgenError:
+            raise
+        except Exception as exc:
+            raise _failure(c.reg, c.spec.id, f"verify raised {type(exc).__name__} {at} in the"
+                           f" operating envelope: {exc}", "verify", exc) from exc
+        agreed = _agreed(c.reg, c.spec, rows, at)
+        out += tuple(dataclasses.replace(r, point=at, point_inputs=inputs)
+                     for r in agreed or ())
+    return out
+
+
+def _agreed(reg: RegisteredCalc, spec: CalcSpec, rows: Any, at: str = ""
+            ) -> tuple[VerificationRow, ...] | None:
+    """The rows, checked: VerificationRows that agree, or a failure naming the calc."""
+    verification: tuple[VerificationRow, ...] | None = None
+    if rows is not None:
+        rows = tuple(rows)
+        bad = [r for r in rows if not isinstance(r, VerificationRow)]
+        if bad:
+            raise _failure(reg, spec.id, f"verify returned {type(bad[0]).__name__}, not"
+                           " VerificationRow", "verify")
+        disagree = [r for r in rows if not r.agrees]
+        if disagree:
+            about = "" if reg.plugin == reg.name else f"calc type '{reg.name}': "
+            text = "; ".join(
+                f"{r.quantity}: closed form {r.closed_form:.6g}, independent {r.independent:.6g}"
+                f" (relative difference {r.rel_difference:.2e} > tolerance {r.tolerance:.1e})"
+                for r in disagree)
+            where = f" {at} in the operating envelope" if at else ""
+            raise VerificationError(f"{about}independent verification disagrees{where}: {text};"
+                                    " a package whose two methods disagree is not issued",
+                                    plugin=reg.plugin, package=reg.package, calc=spec.id,
+                                    stage="verify")
+        verification = rows
+    return verification
 
 
 def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,

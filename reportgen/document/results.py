@@ -6,7 +6,7 @@ import json
 import math
 from typing import Any
 
-from reportgen.model import Document, Quantity
+from reportgen.model import Check, Document, Quantity, Section
 from reportgen.units import DIMENSIONS
 
 RESULTS_FORMAT = "reportgen.results/1"
@@ -71,7 +71,8 @@ def _results(doc: Document) -> dict[str, Any]:
                 "results": {r.key: _q(r.quantity) for r in s.results},
                 "checks": [
                     {"id": c.id, "description": c.description, "status": c.status,
-                     "value": _q(c.value), "limit": _q(c.limit), "comparison": c.comparison}
+                     "value": _q(c.value), "limit": _q(c.limit), "comparison": c.comparison,
+                     **_governing(c)}
                     for c in s.checks
                 ],
                 "verification": None if s.verification is None else [
@@ -79,13 +80,43 @@ def _results(doc: Document) -> dict[str, Any]:
                      "independent": v.independent,
                      "rel_difference": v.rel_difference if math.isfinite(v.rel_difference)
                      else None,
-                     "tolerance": v.tolerance, "agrees": v.agrees, "method": v.method}
+                     "tolerance": v.tolerance, "agrees": v.agrees, "method": v.method,
+                     **({} if s.envelope is None else {"point": _inputs(v.point_inputs)})}
                     for v in s.verification
                 ],
+                **_envelope(s),
             }
             for s in doc.sections
         ],
     }
+
+
+def _inputs(inputs: tuple[tuple[str, Quantity], ...]) -> dict[str, Any]:
+    return {name: _q(q) for name, q in inputs}
+
+
+def _governing(c: Check) -> dict[str, Any]:
+    """A check judged over an envelope: its worst value and the inputs (SI) where it
+    governs, those that differ from nominal; its ``value`` stays the nominal one."""
+    g = c.governing
+    if g is None:
+        return {}
+    value = _q(g.value) or {"value": None, "unit": None}
+    return {"governing": {**value, "status": g.status, "nominal_status": g.nominal_status,
+                          "where": g.where, "inputs": _inputs(g.inputs)}}
+
+
+def _envelope(s: Section) -> dict[str, Any]:
+    """The extent of the calc's operating envelope (SI), when it has one."""
+    e = s.envelope
+    if e is None:
+        return {}
+    return {"envelope": {
+        "inputs": {i.name: {"kind": i.kind, "written": i.text, "low": i.low.value,
+                            "nominal": i.nominal.value, "high": i.high.value,
+                            "unit": si_unit(i.low.dimension)} for i in e.inputs},
+        "orders": [{"order": k, "label": label} for k, label in e.orders],
+        "evaluations": e.evaluations}}
 
 
 def results_bytes(doc: Document) -> bytes:

@@ -21,6 +21,13 @@ from typing import Any
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
+from reportgen.job.orders import (
+    MAX_ENVELOPE_POINTS,
+    SPEED_INPUT,
+    envelope_points,
+    has_running_speed,
+    parse_orders,
+)
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
 from reportgen.model import PackageInfo, RevisionEntry, ScheduleItem
 from reportgen.units import DIMENSIONS, Spread, UnitProblem, parse_quantity, parse_spread
@@ -101,6 +108,8 @@ class CalcSpec:
     sources: Mapping[str, str] = field(default_factory=dict)
     #: the inputs given with a range or a tolerance, by name (the nominal is in ``inputs``)
     spreads: Mapping[str, Spread] = field(default_factory=dict)
+    #: excitation orders of the running speed, (order, label); () when none are listed
+    orders: tuple[tuple[float, str], ...] = ()
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -721,6 +730,15 @@ class _Validator:
         self._files = {}
         self._sources = {}
         self._spreads = {}
+        orders: tuple[tuple[float, str], ...] = ()
+        if "orders" in inputs_raw and has_running_speed(ct.inputs):
+            orders, bad = parse_orders(inputs_raw["orders"])
+            for fld, msg in bad:
+                self.add(msg, calc=label, field=f"inputs.{fld}")
+            if SPEED_INPUT not in inputs_raw:
+                self.add(f"orders multiply the running speed: give {SPEED_INPUT} (for example"
+                         " \"1480 rpm\")", calc=label, field="inputs.orders")
+            inputs_raw = {k: v for k, v in inputs_raw.items() if k != "orders"}
         inputs, given = self._values(inputs_raw, ct.inputs, label, "inputs")
         criteria, cgiven = self._values(criteria_raw, ct.criteria, label, "criteria")
         if len(self.problems) == before:
@@ -734,6 +752,14 @@ class _Validator:
                                   stage="validate") from exc
             for fld, msg in cross:
                 self.add(msg, calc=label, field=fld)
+        if len(self.problems) == before and (self._spreads or orders):
+            kinds = [sp.kind for sp in self._spreads.values()]
+            points = envelope_points(kinds.count("range"), kinds.count("tolerance"),
+                                     len(orders))
+            if points > MAX_ENVELOPE_POINTS:
+                self.add(f"the operating envelope would take {points} evaluations (at most"
+                         f" {MAX_ENVELOPE_POINTS}): give fewer ranges, tolerances or orders",
+                         calc=label, field="inputs")
         if len(self.problems) != before:
             return None
         assert isinstance(cid, str) and isinstance(plugin, str)  # no problems were added
@@ -741,7 +767,7 @@ class _Validator:
                         given=given, criteria=criteria, criteria_given=cgiven,
                         raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw),
                         files=dict(self._files), sources=dict(self._sources),
-                        spreads=dict(self._spreads))
+                        spreads=dict(self._spreads), orders=orders)
 
     def _values(self, raw: Mapping[str, Any], specs: tuple[InputSpec, ...], calc: str,
                 table: str) -> tuple[dict[str, Any], frozenset[str]]:

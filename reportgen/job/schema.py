@@ -27,6 +27,7 @@ from reportgen.job.load import (
     UNIT_SYSTEMS,
     empty_date_allowed,
 )
+from reportgen.job.orders import MAX_ORDER, MAX_ORDERS, has_running_speed
 from reportgen.units import DIMENSIONS, STANDARD_GRAVITY
 
 SCHEMA_ID = "https://reportgen.invalid/schema/job-1.json"
@@ -322,7 +323,20 @@ def _table(specs: tuple[InputSpec, ...], inputs: bool = True) -> dict[str, Any]:
     required = [s.name for s in specs if s.required and s.default is None]
     if required:
         table["required"] = required
+    if inputs and has_running_speed(specs):
+        table["properties"]["orders"] = _orders()
     return table
+
+
+def _orders() -> dict[str, Any]:
+    """Excitation orders of the running speed (reportgen.job.orders)."""
+    number = {"type": "number", "exclusiveMinimum": 0, "maximum": MAX_ORDER}
+    return {"type": "array", "minItems": 1, "maxItems": MAX_ORDERS,
+            "description": "excitation orders of the running speed, each assessed over the"
+            " envelope: [1, 2, 0.5, { order = 9, label = \"blade pass\" }]",
+            "items": {"anyOf": [number, {
+                "type": "object", "additionalProperties": False, "required": ["order"],
+                "properties": {"order": number, "label": {"type": "string"}}}]}}
 
 
 # ---------------------------------------------------------------- the job

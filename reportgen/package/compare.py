@@ -1,6 +1,7 @@
 """The one comparer of two revisions of a package (or a package and its rebuild): the
 package's facts, calcs added or removed, inputs as written (and in SI), results, check
-statuses, values and limits, and the independent verification's agreement.
+statuses, values and limits, operating envelopes and where each check governs, and the
+independent verification's agreement.
 
 ``reportgen diff``, the "Changes since revision X" section and ``reportgen verify`` all
 read the same :class:`Changes`; each shows the part it needs. Pure data in, data out.
@@ -53,6 +54,10 @@ class Changes:
     check_values: list[tuple[str, str, str, Any, Any]] = field(default_factory=list)
     # (calc id, old agreement flags, new agreement flags)
     verification: list[tuple[str, list, list]] = field(default_factory=list)
+    # (calc id, old envelope in words or None, new envelope in words or None)
+    envelope: list[tuple[str, str | None, str | None]] = field(default_factory=list)
+    # (calc id, check id, old governing value, new, old point in words, new, unit)
+    governing: list[tuple[str, str, Any, Any, str, str, str]] = field(default_factory=list)
 
 
 def _calcs(job_raw: dict[str, Any]) -> dict[str, dict[str, Any]]:
@@ -104,6 +109,7 @@ def compare(old: Side, new: Side, rtol: float = MOVE_RTOL) -> Changes:
         oc, nc = old_rc.get(cid, {}), new_rc.get(cid, {})
         _compare_results(ch, cid, oc.get("results", {}), nc.get("results", {}), rtol)
         _compare_checks(ch, cid, oc.get("checks", []), nc.get("checks", []), rtol)
+        _compare_envelopes(ch, cid, oc, nc, rtol)
         o_ver = [v.get("agrees") for v in oc.get("verification") or []]
         n_ver = [v.get("agrees") for v in nc.get("verification") or []]
         if o_ver != n_ver:
@@ -142,6 +148,39 @@ def _compare_checks(ch: Changes, cid: str, o_list: list, n_list: list, rtol: flo
             va, vb = _qv(a.get(part)), _qv(b.get(part))
             if not _close(va, vb, rtol):
                 ch.check_values.append((cid, key, part, va, vb))
+
+
+def envelope_text(env: dict[str, Any] | None) -> str | None:
+    """An envelope's extent in words: its inputs as written and its orders."""
+    if not env:
+        return None
+    parts = [f"{name} {e.get('written', '')}".strip()
+             for name, e in (env.get("inputs") or {}).items()]
+    orders = [o.get("order") for o in env.get("orders") or []]
+    if len(orders) > 1:
+        parts.append("orders " + ", ".join(num(o) for o in orders))
+    return "; ".join(parts)
+
+
+def _compare_envelopes(ch: Changes, cid: str, oc: dict[str, Any], nc: dict[str, Any],
+                       rtol: float) -> None:
+    """The envelope's extent, and where and at what value each check governs."""
+    a, b = envelope_text(oc.get("envelope")), envelope_text(nc.get("envelope"))
+    if a != b:
+        ch.envelope.append((cid, a, b))
+    o_chk = {c.get("id"): c.get("governing") for c in oc.get("checks", [])}
+    n_chk = {c.get("id"): c.get("governing") for c in nc.get("checks", [])}
+    for key in dict.fromkeys([*o_chk, *n_chk]):
+        ga, gb = o_chk.get(key), n_chk.get(key)
+        if not ga and not gb:
+            continue
+        va, vb = _qv(ga), _qv(gb)
+        wa = (ga or {}).get("where", "") if ga else "(no envelope)"
+        wb = (gb or {}).get("where", "") if gb else "(no envelope)"
+        if not _close(va, vb, rtol) or wa != wb:
+            unit = (gb or ga or {}).get("unit") or ""
+            ch.governing.append((cid, key, va, vb, wa or "at nominal", wb or "at nominal",
+                                 unit))
 
 
 def _compare_inputs(ch: Changes, cid: str, old: Side, new: Side, oc: dict[str, Any],
@@ -225,6 +264,26 @@ def change_lines(ch: Changes, *, si: bool = True) -> list[str]:
                          f" ({rel_text(rel)}).")
     for cid, key, a, b in ch.checks:
         lines.append(f"{cid}: check {key} {a.upper()} → {b.upper()}.")
+    lines += envelope_lines(ch)
+    return lines
+
+
+def envelope_lines(ch: Changes) -> list[str]:
+    """One sentence per change of an operating envelope or of where a check governs."""
+    lines = []
+    for cid, a, b in ch.envelope:
+        if a is None:
+            lines.append(f"{cid}: operating envelope added: {b}.")
+        elif b is None:
+            lines.append(f"{cid}: operating envelope removed (was {a}).")
+        else:
+            lines.append(f"{cid}: operating envelope changed from {a} to {b}.")
+    for cid, key, a, b, wa, wb, unit in ch.governing:
+        u = f" {unit}" if unit and unit != "1" else ""
+        if wa == "(no envelope)" or wb == "(no envelope)":
+            continue  # said by the envelope's own line
+        lines.append(f"{cid}: check {key} governs at {num(b)}{u} {wb} (was {num(a)}{u}"
+                     f" {wa}).")
     return lines
 
 
@@ -290,6 +349,10 @@ def verify_rows(embedded: dict[str, Any], rebuilt: dict[str, Any],
             for k, part, va, vb in values:
                 if k == key:
                     rows.append((cid, f"check {key} {part}", fmt(va), fmt(vb), rel(va, vb)))
+        for c, key, va, vb, wa, wb, _unit in ch.governing:
+            if c == cid:
+                rows.append((cid, f"check {key} governing", f"{fmt(va)} {wa}",
+                             f"{fmt(vb)} {wb}", rel(va, vb)))
         for c, fa, fb in ch.verification:
             if c == cid:
                 rows.append((cid, "independent verification", fmt(fa), fmt(fb), ""))

@@ -175,6 +175,7 @@ class Scheduler:
             (cache_dir or _default_dir()) if use_cache else None)
         self.pool: ProcessPoolExecutor | None = None
         self._verifying: dict[str, tuple[str | None, Future]] = {}
+        self._points: dict[int, tuple[CalcContext, str | None, Future | None]] = {}
         self._drawing: dict[str, Future] = {}  # asset key (or the font job) -> future
         self._queued: dict[str, AssetJob] = {}  # drawings waiting for the last compute
         self._chunks: list[tuple[list[str], Future]] = []
@@ -219,6 +220,12 @@ class Scheduler:
         if key is None or self.verification.get(key) is MISSING:
             self._verifying[c.spec.id] = (key, self.pool.submit(
                 _verify_remote, c.reg, c.ctx, c.output))
+        for ctx, output, _at, _inputs in (c.envelope.verify_at if c.envelope else ()):
+            # the governing points of its operating envelope, by their context object
+            key = self.verification.key(c.reg, ctx, output)
+            fut = (self.pool.submit(_verify_remote, c.reg, ctx, output)
+                   if key is None or self.verification.get(key) is MISSING else None)
+            self._points[id(ctx)] = (ctx, key, fut)
         for key_, job in asset_jobs(c.output.blocks, c.ctx.units).items():
             if key_ not in self._drawing and key_ not in self._ready:
                 self._queued.setdefault(key_, job)
@@ -239,7 +246,11 @@ class Scheduler:
         """The calc's verification rows: from the worker that started them, the cache, or
         computed here (``verify=`` of compute_document)."""
         self._start_queued()  # every calc is computed by now: the drawings may start
-        started = self._verifying.pop(ctx.calc_id, None)
+        point = self._points.pop(id(ctx), None)
+        if point is not None and point[0] is ctx:  # an envelope point (None: in the cache)
+            started = None if point[2] is None else (point[1], point[2])
+        else:
+            started = self._verifying.pop(ctx.calc_id, None)
         if started is None:
             return self.verification(reg, ctx, output)
         key, fut = started

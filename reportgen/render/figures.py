@@ -49,6 +49,9 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
             for band in panel.bands:
                 ax.axvspan(band.x_low, band.x_high, color="#e8b4a0", alpha=0.35, lw=0,
                            label=band.label or None)
+            for fill in panel.fills:
+                ax.fill_between(fill.x, fill.low, fill.high, color="#9db4d0", alpha=0.45,
+                                lw=0, label=fill.label or None)
             for s in panel.series:
                 if s.emphasis:
                     c = _COLORS[0]
