@@ -130,11 +130,14 @@ class Panel:
     bands: tuple[Band, ...] = ()
     hlines: tuple[tuple[float, str], ...] = ()
     y_range: tuple[float, float] | None = None
+    x_label: str = ""  # the panel's own x axis, in a grid (Figure.columns > 1)
+    equal_aspect: bool = False  # one unit on x as long as one on y (plans, mode shapes)
 
 
 @dataclass(**_frozen)
 class Figure:
-    """A declarative plot: panels stacked vertically, sharing the x axis."""
+    """A declarative plot: panels stacked vertically, sharing the x axis; with ``columns``
+    above 1, small multiples: a grid filled row by row, each panel with its own x axis."""
 
     key: str
     caption: str
@@ -143,6 +146,7 @@ class Figure:
     panels: tuple[Panel, ...]
     x_scale: Literal["linear", "log"] = "linear"
     x_range: tuple[float, float] | None = None
+    columns: int = 1
 
 
 @dataclass(**_frozen)

@@ -1,5 +1,5 @@
-"""Isolator catalogues (rigid_body_mounts/catalogue.py): reading CSV and TOML with errors
-that name file, row and column; the consistency and travel checks; model selection; and a
+"""Isolator catalogues (mechanics/catalogue.py, mechanics/isolator_selection.py): reading CSV
+and TOML with errors that name file, row and column; the consistency and travel checks; model selection; and a
 rooftop air handler (invented) whose heavy corner needs a bigger spring."""
 
 from __future__ import annotations
@@ -9,10 +9,9 @@ from importlib import resources
 
 import pytest
 from reportgen_plugins.rigid_body_mounts.analysis import body_from_inputs
-from reportgen_plugins.rigid_body_mounts.catalogue import (
-    CatalogueError,
+from reportgen_plugins.mechanics.catalogue import CatalogueError, read_catalogue
+from reportgen_plugins.mechanics.isolator_selection import (
     consistency,
-    read_catalogue,
     required_static_deflection,
     select,
     select_for_loads,

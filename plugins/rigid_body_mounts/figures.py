@@ -1,0 +1,182 @@
+"""rigid_body_mounts' figures and tables: the plan of the mounts with their loads and the
+centre of gravity, the six mode shapes in two views each, the natural frequencies against
+the running speed and its orders, the mount table and the spring selection table."""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from typing import Any
+
+import numpy as np
+from reportgen_plugins.mechanics import series_values as _r
+
+from reportgen import Band, Figure, Marker, Panel, Paragraph, Series, Sheet, Table
+from reportgen.units import STANDARD_GRAVITY, format_number, table_display
+
+from . import text
+from .analysis import Analysis
+from .resolve import Resolved
+from .response import forced_response
+from .views import frequency_chart, mode_views, plan_view
+
+#: Orders of the running speed marked on the frequency chart: 1 × (unbalance) and 2 ×
+#: (misalignment, common practice).
+ORDERS = (1.0, 2.0)
+
+
+def _scale(dimension: str, units: str) -> tuple[float, str]:
+    return table_display(1.0, dimension, units)
+
+
+def plan(a: Analysis, units: str) -> Figure:
+    pv = plan_view(a.model, a.static)
+    ls, lu = _scale("length", units)
+    fs, fu = _scale("force", units)
+    outline = Series(x=_r(np.array([p[0] for p in pv.outline]) * ls),
+                     y=_r(np.array([p[1] for p in pv.outline]) * ls),
+                     label="support outline", style="dashed")
+    marks = [Marker(x=x * ls, y=y * ls,
+                    label=f"{i}: {format_number(p * fs, 3)} {fu}" + (" TENSION" if p < 0 else ""))
+             for i, (x, y, p) in enumerate(zip(pv.mount_x, pv.mount_y, pv.loads, strict=True),
+                                           start=1)]
+    cg = Series(x=(pv.cg_x * ls,), y=(pv.cg_y * ls,), label="centre of gravity",
+                style="points", emphasis=True)
+    return Figure(
+        key="mount-plan",
+        caption=f"Plan of the mounts (numbered) with their static loads [{fu}] and the centre"
+                " of gravity" + ("" if pv.cg_inside else
+                                 "; the centre of gravity lies OUTSIDE the support outline"),
+        alt="Plan view of the mount positions, each labelled with its number and static"
+            " load, the support outline and the centre of gravity",
+        x_label=f"x [{lu}]",
+        panels=(Panel(series=(outline, cg), y_label=f"y [{lu}]", markers=tuple(marks),
+                      equal_aspect=True),))
+
+
+def modes(a: Analysis, units: str) -> Figure:
+    ls, lu = _scale("length", units)
+    panels = []
+    for mv in mode_views(a.model, a.modes):
+        for view, axes, rest, moved in zip(mv.views, mv.axes, mv.undeformed, mv.displaced,
+                                           strict=True):
+            ring = [0, 1, 2, 3, 0]
+            n = len(rest)
+            panels.append(Panel(
+                series=(Series(x=_r(rest[ring, 0] * ls), y=_r(rest[ring, 1] * ls),
+                               style="dotted"),
+                        Series(x=_r(moved[ring, 0] * ls), y=_r(moved[ring, 1] * ls),
+                               emphasis=True),
+                        Series(x=_r(moved[4:n - 1, 0] * ls), y=_r(moved[4:n - 1, 1] * ls),
+                               style="points")),
+                y_label=f"Mode {mv.mode}, {format_number(mv.frequency, 3)} Hz\n"
+                        f"{axes[1]} [{lu}]",
+                x_label=f"{view}: {axes[0]} [{lu}]", equal_aspect=True))
+    return Figure(
+        key="mode-shapes",
+        caption="The six mode shapes, each in the two views that show the most motion"
+                " (plan x–y, front x–z or side y–z): the base outline at rest (dotted) and"
+                " displaced (solid, exaggerated), the mounts as points",
+        alt="Twelve small plots, two per mode, of the base outline at rest and displaced"
+            " in the mode",
+        x_label="", panels=tuple(panels), columns=4)
+
+
+def frequencies(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
+                units: str) -> Figure:
+    f = a.modes.frequencies
+    points = Series(x=_r(f), y=tuple(float(i) for i in range(1, 7)), style="points",
+                    label="natural frequencies", emphasis=True)
+    speed = p.get("running_speed")
+    if not speed:
+        return Figure(key="frequencies", caption="The six natural frequencies",
+                      alt="The six natural frequencies as points, mode number against"
+                          " frequency", x_label="Frequency [Hz]",
+                      panels=(Panel(series=(points,), y_label="Mode", y_range=(0.5, 6.5)),))
+    chart = frequency_chart(a.modes, speed, ORDERS, crit["min_frequency_ratio"])
+    top = max(chart.orders[-1][1] * 1.15, float(f[-1]) * 1.2)
+    markers = tuple(Marker(x=fo, label=f"{format_number(n, 2)}× running speed")
+                    for n, fo in chart.orders)
+    panels = [Panel(series=(points,), y_label="Mode", y_range=(0.5, 6.5), markers=markers,
+                    bands=(Band(x_low=chart.limit, x_high=top,
+                                label=f"above f_run/{format_number(chart.min_ratio, 4)}"),))]
+    if a.excitations:
+        grid = np.linspace(top / 2000.0, top, 800)
+        total = sum(forced_response(a.model, a.modes, e, grid, a.damping_ratio).total_peak
+                    for e in a.excitations)
+        fs, fu = _scale("force", units)
+        panels.append(Panel(series=(Series(x=_r(grid), y=_r(np.maximum(total, 1e-30) * fs),
+                                           label="total force to the structure"),),
+                            y_label=f"Total force [{fu}]", y_scale="log", markers=markers))
+    return Figure(
+        key="frequencies",
+        caption=f"Natural frequencies against the running speed"
+                f" {format_number(speed, 4)} Hz ({format_number(speed * 60, 4)} rpm) and its"
+                f" orders; shaded: above the isolation limit"
+                f" {format_number(chart.limit, 4)} Hz"
+                + ("; below, the total force to the structure over frequency for the stated"
+                   " excitation" if a.excitations else ""),
+        alt="Mode number against natural frequency with the running speed's orders as"
+            " vertical lines and the band above the isolation limit shaded",
+        x_label="Frequency [Hz]", x_range=(0.0, top), panels=tuple(panels))
+
+
+def all_figures(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
+                units: str) -> tuple[Figure, ...]:
+    return plan(a, units), modes(a, units), frequencies(a, p, crit, units)
+
+
+def mount_table(a: Analysis, units: str) -> Table:
+    k = a.model.mount_stiffness
+    forces = a.transmitted_force
+    rows = []
+    for i, m in enumerate(a.model.mounts):
+        rows.append((str(i + 1), m.x, m.y, m.z, float(k[i, 0, 0]), float(k[i, 1, 1]),
+                     float(k[i, 2, 2]), float(a.static.loads[i]),
+                     float(a.static.deflections[i]), m.rated_load,
+                     None if forces is None else float(forces[i])))
+    return Table(title="Mounts: position, stiffness, static load and deflection, rated load"
+                       " and dynamic force",
+                 header=("Mount", "x", "y", "z", "k_x", "k_y", "k_z", "Static load",
+                         "Deflection", "Rated load", "Dynamic force"),
+                 units=("", "length", "length", "length", "stiffness", "stiffness",
+                        "stiffness", "force", "length", "force", "force"),
+                 rows=tuple(rows))
+
+
+_HOW = {"job": "stiffness given", "named": "model named", "selected": "chosen"}
+
+
+def selection_table_into(s: Sheet, done: Resolved, a: Analysis, units: str) -> None:
+    speed = a.running_speed
+    cat = done.catalogue
+    assert cat is not None
+    label = " ".join(x for x in (cat.maker, cat.series) if x) or cat.name
+    limit = None
+    if done.required_deflection is not None and speed:
+        limit = float(np.sqrt(STANDARD_GRAVITY / done.required_deflection) / (2 * np.pi))
+    s.add(Paragraph(title="Isolator selection from the catalogue",
+                    text=f"{text.SELECTION} Catalogue: {cat.name} ({label}), {len(cat.rows)}"
+                         f" models. {text.required_deflection(done.required_deflection, limit)}"
+                         + (f" The choice settled in {done.rounds} round(s)."
+                            if done.rounds else "")))
+    rows = []
+    for i, c in enumerate(done.choices):
+        load = float(a.static.loads[i])
+        defl = float(a.static.deflections[i])
+        mdl = c.model
+        note = "" if c.selection is None else (
+            c.selection.reason if c.selection.row is not None
+            else f"NO MODEL MEETS THE NEED: {c.selection.reason}")
+        rows.append((str(i + 1), _HOW[c.how], mdl.model if mdl else "—", load,
+                     mdl.rated_load if mdl else None,
+                     format_number(100 * load / mdl.rated_load, 3) if mdl else "—",
+                     mdl.spring_rate if mdl else None, defl,
+                     mdl.solid_deflection if mdl else None,
+                     (mdl.solid_deflection - defl) if mdl else None, note))
+    s.add(Table(title="Spring selection per mount",
+                header=("Mount", "How", "Model", "Load", "Rated load", "Use [%]",
+                        "Spring rate", "Deflection", "Solid deflection", "Travel left",
+                        "Why"),
+                units=("", "", "", "force", "force", "", "stiffness", "length", "length",
+                       "length", ""),
+                rows=tuple(rows)))
