@@ -132,6 +132,7 @@ class Panel:
     y_range: tuple[float, float] | None = None
     x_label: str = ""  # the panel's own x axis, in a grid (Figure.columns > 1)
     equal_aspect: bool = False  # one unit on x as long as one on y (plans, mode shapes)
+    title: str = ""  # a small multiple's own heading
 
 
 @dataclass(**_frozen)

@@ -1,6 +1,7 @@
 """Isolator catalogues (mechanics/catalogue.py, mechanics/isolator_selection.py): reading CSV
-and TOML with errors that name file, row and column; the consistency and travel checks; model selection; and a
-rooftop air handler (invented) whose heavy corner needs a bigger spring."""
+and TOML with errors that name file, row and column; the consistency and travel checks;
+model selection; and a rooftop air handler (invented) whose heavy corner needs a bigger
+spring."""
 
 from __future__ import annotations
 
@@ -8,7 +9,6 @@ import math
 from importlib import resources
 
 import pytest
-from reportgen_plugins.rigid_body_mounts.analysis import body_from_inputs
 from reportgen_plugins.mechanics.catalogue import CatalogueError, read_catalogue
 from reportgen_plugins.mechanics.isolator_selection import (
     consistency,
@@ -18,6 +18,7 @@ from reportgen_plugins.mechanics.isolator_selection import (
     settle_selection,
     travel_check,
 )
+from reportgen_plugins.rigid_body_mounts.analysis import body_from_inputs
 from reportgen_plugins.rigid_body_mounts.method import (
     Mount,
     assemble,

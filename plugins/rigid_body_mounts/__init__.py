@@ -111,8 +111,8 @@ class RigidBodyMounts(CalcType):
                   " force at the running speed", dimension=_F, required=False, positive=True,
                   maximum=1e9),
         InputSpec(name="force_direction", symbol="e_F", description="Direction of the"
-                  " harmonic force", kind="choice", choices=("x", "y", "z"), default="z",
-                  default_note="vertical"),
+                  " harmonic force (with force_amplitude)", kind="choice",
+                  choices=("x", "y", "z"), required=False),
         _length("force_x", "x_F", "Point of the harmonic force, x", required=False),
         _length("force_y", "y_F", "Point of the harmonic force, y", required=False),
         _length("force_z", "z_F", "Point of the harmonic force, z", required=False),
@@ -121,9 +121,8 @@ class RigidBodyMounts(CalcType):
         _length("rotor_x", "x_R", "Rotor's unbalance plane, x", required=False),
         _length("rotor_y", "y_R", "Rotor's unbalance plane, y", required=False),
         _length("rotor_z", "z_R", "Rotor's unbalance plane, z", required=False),
-        InputSpec(name="rotor_axis", symbol="e_R", description="Axis the rotor spins about",
-                  kind="choice", choices=("x", "y", "z"), default="z",
-                  default_note="vertical shaft"),
+        InputSpec(name="rotor_axis", symbol="e_R", description="Axis the rotor spins about"
+                  " (with unbalance)", kind="choice", choices=("x", "y", "z"), required=False),
         InputSpec(name="catalogue", symbol="C", description="Isolator catalogue (CSV or TOML;"
                   " beside the job file or in the firm's template folder)", kind="file",
                   formats=(".csv", ".toml"), required=False, max_bytes=1024 * 1024),
@@ -173,6 +172,10 @@ class RigidBodyMounts(CalcType):
         if ({"force_amplitude", "unbalance"} & given) and "running_speed" not in given:
             problems.append(("inputs.running_speed", "an excitation needs the running speed"
                              " (for example \"1180 rpm\")"))
+        for load, axis in (("force_amplitude", "force_direction"), ("unbalance", "rotor_axis")):
+            if load in given and axis not in given:
+                problems.append((f"inputs.{axis}", f"{load} needs {axis}: \"x\", \"y\" or"
+                                 " \"z\" (z is vertical)"))
         if problems:
             return problems
         try:
@@ -196,7 +199,7 @@ class RigidBodyMounts(CalcType):
         working.modes(s, a)
         working.statics(s, a, units)
         if done.catalogue is not None:
-            figures.selection_table_into(s, done, a, units)
+            figures.selection_table_into(s, done, a, crit, units)
         if a.transmitted_force is not None:
             working.response(s, p, a)
         s.add(figures.mount_table(a, units))

@@ -96,7 +96,7 @@ def _catalogue(s: Sheet, a: Analysis, done: Resolved) -> None:
                     f" least {format_number(100 * t.allowance, 3)} % of the operating"
                     " deflection (common practice)", value=t.remaining, limit=t.required,
                     comparison=">=", dimension="length")
-        if done.required_deflection is not None and c.how != "job":
+        if done.required_deflection is not None and c.how == "named":
             s.check(f"deflection-{i}", f"Mount {i} ({c.model.model}): static deflection"
                     " reaches the required deflection", value=defl,
                     limit=done.required_deflection, comparison=">=", dimension="length")
@@ -104,7 +104,7 @@ def _catalogue(s: Sheet, a: Analysis, done: Resolved) -> None:
         k = consistency(row)
         s.check(f"catalogue-{name}", f"Catalogue data of {name}: spring rate × rated"
                 f" deflection within ±{format_number(100 * k.tolerance, 3)} % of the rated"
-                " load", value=abs(k.ratio - 1.0), limit=k.tolerance, comparison="<=",
+                " load", value=round(abs(k.ratio - 1.0), 9), limit=k.tolerance, comparison="<=",
                 note=f"k·δ_rated/P_rated = {format_number(k.ratio, 4)}")
     assert done.catalogue is not None
     bad = [r.model for r in done.catalogue.rows

@@ -11,7 +11,7 @@ import numpy as np
 from reportgen_plugins.mechanics import series_values as _r
 
 from reportgen import Band, Figure, Marker, Panel, Paragraph, Series, Sheet, Table
-from reportgen.units import STANDARD_GRAVITY, format_number, table_display
+from reportgen.units import format_number, table_display
 
 from . import text
 from .analysis import Analysis
@@ -50,34 +50,71 @@ def plan(a: Analysis, units: str) -> Figure:
             " load, the support outline and the centre of gravity",
         x_label=f"x [{lu}]",
         panels=(Panel(series=(outline, cg), y_label=f"y [{lu}]", markers=tuple(marks),
-                      equal_aspect=True),))
+                      equal_aspect=True, y_range=_padded(pv.mount_y + (pv.cg_y,), ls)),))
+
+
+def _padded(values: tuple[float, ...], scale: float) -> tuple[float, float]:
+    """A range around ``values`` with room above for the labels."""
+    lo, hi = min(values) * scale, max(values) * scale
+    pad = max(hi - lo, 1e-3 * scale) * 0.2
+    return lo - pad, hi + pad
+
+
+def _box(a: Analysis) -> np.ndarray:
+    """Corners of the box the drawings show (8 × 3, m): the mounts' plan extent, from the
+    mounts' lowest elastic centre to as far above the centre of gravity as that is below
+    it (at least a tenth of the plan size)."""
+    pos = np.array([[m.x, m.y, m.z] for m in a.model.mounts])
+    lo, hi = pos.min(axis=0), pos.max(axis=0)
+    zg = float(a.model.body.cg[2])
+    size = max(float(np.ptp(pos[:, :2], axis=0).max()), 1e-3)
+    z0 = min(float(lo[2]), zg - 0.05 * size)
+    z1 = max(zg + (zg - z0), z0 + 0.1 * size)
+    return np.array([[x, y, z] for z in (z0, z1) for y in (lo[1], hi[1]) for x in (lo[0], hi[0])])
+
+
+#: Per view: the datum axes across and up the page, and the box's corners (indices into
+#: _box) drawn as its outline in that view.
+_VIEWS = {"plan": ((0, 1), (4, 5, 7, 6, 4)), "front": ((0, 2), (0, 1, 5, 4, 0)),
+          "side": ((1, 2), (0, 2, 6, 4, 0))}
+
+
+def _motion(phi: np.ndarray, points: np.ndarray, cg: np.ndarray) -> np.ndarray:
+    """u = t + θ × r of body points in the mode φ."""
+    return phi[:3] + np.cross(phi[3:], points - cg)
 
 
 def modes(a: Analysis, units: str) -> Figure:
     ls, lu = _scale("length", units)
+    box = _box(a)
+    cg = np.asarray(a.model.body.cg, dtype=float)
+    mounts = np.array([[m.x, m.y, m.z] for m in a.model.mounts])
+    size = float(np.ptp(box, axis=0).max())
     panels = []
     for mv in mode_views(a.model, a.modes):
-        for view, axes, rest, moved in zip(mv.views, mv.axes, mv.undeformed, mv.displaced,
-                                           strict=True):
-            ring = [0, 1, 2, 3, 0]
-            n = len(rest)
+        phi = np.asarray(a.modes.shapes[:, mv.mode - 1])
+        span = max(float(np.abs(_motion(phi, box, cg)).max()), 1e-30)
+        gain = 0.12 * size / span  # the point that moves most moves 12 % of the size
+        for view in mv.views:
+            (i, j), ring = _VIEWS[view]
+            rest = box[list(ring)]
+            disp = rest + gain * _motion(phi, rest, cg)
+            feet = mounts + gain * _motion(phi, mounts, cg)
+            names = "xyz"
             panels.append(Panel(
-                series=(Series(x=_r(rest[ring, 0] * ls), y=_r(rest[ring, 1] * ls),
-                               style="dotted"),
-                        Series(x=_r(moved[ring, 0] * ls), y=_r(moved[ring, 1] * ls),
-                               emphasis=True),
-                        Series(x=_r(moved[4:n - 1, 0] * ls), y=_r(moved[4:n - 1, 1] * ls),
-                               style="points")),
-                y_label=f"Mode {mv.mode}, {format_number(mv.frequency, 3)} Hz\n"
-                        f"{axes[1]} [{lu}]",
-                x_label=f"{view}: {axes[0]} [{lu}]", equal_aspect=True))
+                series=(Series(x=_r(rest[:, i] * ls), y=_r(rest[:, j] * ls), style="dotted"),
+                        Series(x=_r(disp[:, i] * ls), y=_r(disp[:, j] * ls), emphasis=True),
+                        Series(x=_r(feet[:, i] * ls), y=_r(feet[:, j] * ls), style="points")),
+                title=f"Mode {mv.mode} · {format_number(mv.frequency, 3)} Hz · {view}",
+                y_label=f"{names[j]} [{lu}]", x_label=f"{names[i]} [{lu}]",
+                equal_aspect=True))
     return Figure(
         key="mode-shapes",
         caption="The six mode shapes, each in the two views that show the most motion"
-                " (plan x–y, front x–z or side y–z): the base outline at rest (dotted) and"
-                " displaced (solid, exaggerated), the mounts as points",
-        alt="Twelve small plots, two per mode, of the base outline at rest and displaced"
-            " in the mode",
+                " (plan x–y, front x–z, side y–z): the equipment's outline at rest (dotted)"
+                " and displaced in the mode (solid, exaggerated), the mounts as points",
+        alt="Twelve small plots, two per mode, of the equipment's outline at rest and"
+            " displaced in the mode",
         x_label="", panels=tuple(panels), columns=4)
 
 
@@ -100,13 +137,15 @@ def frequencies(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
                     bands=(Band(x_low=chart.limit, x_high=top,
                                 label=f"above f_run/{format_number(chart.min_ratio, 4)}"),))]
     if a.excitations:
-        grid = np.linspace(top / 2000.0, top, 800)
+        grid = np.linspace(top / 200.0, top, 800)
         total = sum(forced_response(a.model, a.modes, e, grid, a.damping_ratio).total_peak
                     for e in a.excitations)
         fs, fu = _scale("force", units)
-        panels.append(Panel(series=(Series(x=_r(grid), y=_r(np.maximum(total, 1e-30) * fs),
+        y = np.asarray(total) * fs
+        panels.append(Panel(series=(Series(x=_r(grid), y=_r(np.maximum(y, 1e-30)),
                                            label="total force to the structure"),),
-                            y_label=f"Total force [{fu}]", y_scale="log", markers=markers))
+                            y_label=f"Total force [{fu}]", y_scale="log", markers=markers,
+                            y_range=(float(y.max()) * 1e-3, float(y.max()) * 3.0)))
     return Figure(
         key="frequencies",
         caption=f"Natural frequencies against the running speed"
@@ -146,17 +185,21 @@ def mount_table(a: Analysis, units: str) -> Table:
 _HOW = {"job": "stiffness given", "named": "model named", "selected": "chosen"}
 
 
-def selection_table_into(s: Sheet, done: Resolved, a: Analysis, units: str) -> None:
+def limit_of(speed: float | None, crit: Mapping[str, Any]) -> float | None:
+    return speed / crit["min_frequency_ratio"] if speed else None
+
+
+def selection_table_into(s: Sheet, done: Resolved, a: Analysis, crit: Mapping[str, Any],
+                         units: str) -> None:
     speed = a.running_speed
     cat = done.catalogue
     assert cat is not None
-    label = " ".join(x for x in (cat.maker, cat.series) if x) or cat.name
-    limit = None
-    if done.required_deflection is not None and speed:
-        limit = float(np.sqrt(STANDARD_GRAVITY / done.required_deflection) / (2 * np.pi))
+    label = ", ".join(x for x in (cat.maker, cat.series) if x)
+    need = text.required_deflection(done.required_deflection, limit_of(speed, crit),
+                                    crit.get("min_static_deflection"), units)
     s.add(Paragraph(title="Isolator selection from the catalogue",
-                    text=f"{text.SELECTION} Catalogue: {cat.name} ({label}), {len(cat.rows)}"
-                         f" models. {text.required_deflection(done.required_deflection, limit)}"
+                    text=f"{text.SELECTION} Catalogue: {cat.name}"
+                         f"{f' ({label})' if label else ''}, {len(cat.rows)} models. {need}"
                          + (f" The choice settled in {done.rounds} round(s)."
                             if done.rounds else "")))
     rows = []
@@ -164,9 +207,8 @@ def selection_table_into(s: Sheet, done: Resolved, a: Analysis, units: str) -> N
         load = float(a.static.loads[i])
         defl = float(a.static.deflections[i])
         mdl = c.model
-        note = "" if c.selection is None else (
-            c.selection.reason if c.selection.row is not None
-            else f"NO MODEL MEETS THE NEED: {c.selection.reason}")
+        note = ("" if c.selection is None or c.selection.row is not None
+                else f"none meets the need: {c.selection.reason}")
         rows.append((str(i + 1), _HOW[c.how], mdl.model if mdl else "—", load,
                      mdl.rated_load if mdl else None,
                      format_number(100 * load / mdl.rated_load, 3) if mdl else "—",
@@ -176,7 +218,7 @@ def selection_table_into(s: Sheet, done: Resolved, a: Analysis, units: str) -> N
     s.add(Table(title="Spring selection per mount",
                 header=("Mount", "How", "Model", "Load", "Rated load", "Use [%]",
                         "Spring rate", "Deflection", "Solid deflection", "Travel left",
-                        "Why"),
+                        "Note"),
                 units=("", "", "", "force", "force", "", "stiffness", "length", "length",
                        "length", ""),
                 rows=tuple(rows)))

@@ -3,7 +3,11 @@ selection notes and the cautions."""
 
 from __future__ import annotations
 
-from reportgen.units import format_number
+import math
+
+from reportgen_plugins.mechanics import quantity_text
+
+from reportgen.units import STANDARD_GRAVITY, format_number
 
 
 def assumptions(given: frozenset[str], estimated: bool) -> tuple[str, ...]:
@@ -93,13 +97,24 @@ SELECTION = (
     " to solid at least 50 % of the operating deflection (common practice).")
 
 
-def required_deflection(delta: float | None, f_limit: float | None) -> str:
+def required_deflection(delta: float | None, f_limit: float | None,
+                        stated: float | None, units: str) -> str:
     if delta is None:
         return "No running speed or deflection target: springs are chosen by load alone."
-    why = (f" (a spring alone on its load would then have f_n = √(g/δ)/(2π) at most"
-           f" {format_number(f_limit, 3)} Hz, the isolation limit)" if f_limit else "")
-    return (f"Required static deflection of a chosen spring:"
-            f" {format_number(delta * 1000, 4)} mm{why}.")
+    parts = []
+    if f_limit:
+        parts.append(f"the deflection at which a spring alone on its load has f_n ="
+                     f" √(g/δ)/(2π) = f_run/r_min = {format_number(f_limit, 4)} Hz,"
+                     f" {_len(STANDARD_GRAVITY / (2 * math.pi * f_limit) ** 2, units)}")
+    if stated:
+        parts.append(f"the stated minimum, {_len(stated, units)}")
+    head = f"Required static deflection of a chosen spring: {_len(delta, units)}"
+    return (f"{head}, the larger of {' and '.join(parts)}." if len(parts) > 1
+            else f"{head} ({parts[0]}).")
+
+
+def _len(value: float, units: str) -> str:
+    return quantity_text(value, "length", units, 4)
 
 
 BOX_CAUTION = (

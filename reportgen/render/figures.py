@@ -19,10 +19,10 @@ FIGURE_WIDTH_IN = 6.3
 
 def figure_inches(fig: Figure) -> tuple[float, float]:
     """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.7 in more
-    for each further panel (in a grid: 2.3 in per row of small multiples). Known before
+    for each further panel (in a grid: 2.1 in per row of small multiples). Known before
     drawing, so the layout can start without it."""
     if fig.columns > 1:
-        return FIGURE_WIDTH_IN, 2.3 * -(-len(fig.panels) // fig.columns)
+        return FIGURE_WIDTH_IN, 2.1 * -(-len(fig.panels) // fig.columns)
     return FIGURE_WIDTH_IN, 2.5 + 1.7 * (len(fig.panels) - 1)
 
 
@@ -86,7 +86,9 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
             if panel.y_range:
                 ax.set_ylim(*panel.y_range)
             if panel.equal_aspect:
-                ax.set_aspect("equal", adjustable="datalim")
+                ax.set_aspect("equal", adjustable="box" if grid else "datalim")
+            if panel.title:
+                ax.set_title(panel.title, fontsize=6.5)
             if grid:
                 ax.set_xscale(fig.x_scale)
                 ax.set_xlabel(panel.x_label or fig.x_label)
