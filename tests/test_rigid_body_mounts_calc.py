@@ -21,7 +21,6 @@ from reportgen.testing import (
     assert_calc_contract,
     assert_equations_reproduce,
     compute,
-    load_job_dict,
     make_job,
     result,
     section_checks,
