@@ -304,3 +304,23 @@ def test_sample_builds_and_verify_reruns_it(tmp_path, capsys):
     shutil.rmtree(folder)  # verify reads the catalogue embedded in the package, not the folder
     assert main(["verify", str(pdf)]) == 0
     assert "OK" in capsys.readouterr().out
+
+
+def test_a_catalogue_in_the_firms_template_folder_is_found_and_embedded(tmp_path, rg_plugins):
+    from reportgen.job.load import load_job
+
+    folder = tmp_path / "job"
+    (folder / "firm" / "catalogues").mkdir(parents=True)
+    shutil.copy(CATALOGUE, folder / "firm" / "catalogues" / "tollbrook-ts.csv")
+    text = SAMPLE.read_text(encoding="utf-8").replace(
+        'units = "SI"', 'units = "SI"\ntemplate_dir = "firm"')
+    (folder / "job.toml").write_text(text, encoding="utf-8")
+    job = load_job(folder / "job.toml", rg_plugins)
+    data = job.calcs[0].files["catalogue"]
+    assert data.name == "catalogues/tollbrook-ts.csv"
+    assert data.read_bytes() == CATALOGUE.read_bytes()
+    assert any(a.path == "catalogues/tollbrook-ts.csv" for a in job.attachments)
+    (folder / "firm" / "catalogues" / "tollbrook-ts.csv").unlink()  # neither place: exit 2
+    with pytest.raises(JobError) as exc:
+        load_job(folder / "job.toml", rg_plugins)
+    assert "inputs.catalogue" in str(exc.value) and "not found" in str(exc.value)
