@@ -7,7 +7,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
-from reportgen_plugins.mechanics.isolator_selection import consistency, travel_check
+from reportgen_plugins.mechanics.catalogue_sheet import MountSpring, catalogue_checks
 
 from reportgen import Sheet
 from reportgen.units import format_number
@@ -79,37 +79,14 @@ def _tilt_and_decoupling(s: Sheet, crit: Mapping[str, Any], a: Analysis) -> None
                 comparison=">=", note=f"least decoupled: mode {i + 1}")
 
 
+def springs(a: Analysis, done: Resolved) -> tuple[MountSpring, ...]:
+    """Each mount's spring with its load and deflection from the six-degree statics."""
+    return tuple(MountSpring(number=i + 1, how=c.how, model=c.model, selection=c.selection,
+                             load=float(a.static.loads[i]),
+                             deflection=float(a.static.deflections[i]))
+                 for i, c in enumerate(done.choices))
+
+
 def _catalogue(s: Sheet, a: Analysis, done: Resolved) -> None:
-    used: dict[str, Any] = {}
-    for i, c in enumerate(done.choices, start=1):
-        if c.selection is not None and c.selection.row is None:
-            s.check(f"selection-{i}", f"Mount {i}: a catalogue model meets its need",
-                    status="fail", note=f"{c.selection.reason}; analysed with"
-                    f" {c.model.model if c.model else 'no model'}, the nearest")
-        if c.model is None:
-            continue
-        used.setdefault(c.model.model, c.model)
-        defl = float(a.static.deflections[i - 1])
-        if defl > 0.0:
-            t = travel_check(c.model, defl)
-            s.check(f"travel-{i}", f"Mount {i} ({c.model.model}): travel left to solid at"
-                    f" least {format_number(100 * t.allowance, 3)} % of the operating"
-                    " deflection (common practice)", value=t.remaining, limit=t.required,
-                    comparison=">=", dimension="length")
-        if done.required_deflection is not None and c.how == "named":
-            s.check(f"deflection-{i}", f"Mount {i} ({c.model.model}): static deflection"
-                    " reaches the required deflection", value=defl,
-                    limit=done.required_deflection, comparison=">=", dimension="length")
-    for name, row in used.items():
-        k = consistency(row)
-        s.check(f"catalogue-{name}", f"Catalogue data of {name}: spring rate × rated"
-                f" deflection within ±{format_number(100 * k.tolerance, 3)} % of the rated"
-                " load", value=round(abs(k.ratio - 1.0), 9), limit=k.tolerance, comparison="<=",
-                note=f"k·δ_rated/P_rated = {format_number(k.ratio, 4)}")
     assert done.catalogue is not None
-    bad = [r.model for r in done.catalogue.rows
-           if r.model not in used and not consistency(r).passes]
-    if bad:
-        s.check("catalogue-other-models", "Catalogue models not used here whose spring rate ×"
-                " rated deflection contradicts their rated load", status="info",
-                note=", ".join(bad) + ": confirm with the maker before using them")
+    catalogue_checks(s, springs(a, done), done.catalogue, done.required_deflection)

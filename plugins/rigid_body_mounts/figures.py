@@ -9,12 +9,14 @@ from typing import Any
 
 import numpy as np
 from reportgen_plugins.mechanics import series_values as _r
+from reportgen_plugins.mechanics.catalogue_sheet import selection_paragraph, selection_table
 
-from reportgen import Band, Figure, Marker, Panel, Paragraph, Series, Sheet, Table
+from reportgen import Band, Figure, Marker, Panel, Series, Sheet, Table
 from reportgen.units import format_number, table_display
 
 from . import text
 from .analysis import Analysis
+from .checks import springs
 from .resolve import Resolved
 from .response import forced_response
 from .views import frequency_chart, mode_views, plan_view
@@ -182,43 +184,15 @@ def mount_table(a: Analysis, units: str) -> Table:
                  rows=tuple(rows))
 
 
-_HOW = {"job": "stiffness given", "named": "model named", "selected": "chosen"}
-
-
 def limit_of(speed: float | None, crit: Mapping[str, Any]) -> float | None:
     return speed / crit["min_frequency_ratio"] if speed else None
 
 
 def selection_table_into(s: Sheet, done: Resolved, a: Analysis, crit: Mapping[str, Any],
                          units: str) -> None:
-    speed = a.running_speed
-    cat = done.catalogue
-    assert cat is not None
-    label = ", ".join(x for x in (cat.maker, cat.series) if x)
-    need = text.required_deflection(done.required_deflection, limit_of(speed, crit),
+    assert done.catalogue is not None
+    need = text.required_deflection(done.required_deflection,
+                                    limit_of(a.running_speed, crit),
                                     crit.get("min_static_deflection"), units)
-    s.add(Paragraph(title="Isolator selection from the catalogue",
-                    text=f"{text.SELECTION} Catalogue: {cat.name}"
-                         f"{f' ({label})' if label else ''}, {len(cat.rows)} models. {need}"
-                         + (f" The choice settled in {done.rounds} round(s)."
-                            if done.rounds else "")))
-    rows = []
-    for i, c in enumerate(done.choices):
-        load = float(a.static.loads[i])
-        defl = float(a.static.deflections[i])
-        mdl = c.model
-        note = ("" if c.selection is None or c.selection.row is not None
-                else f"none meets the need: {c.selection.reason}")
-        rows.append((str(i + 1), _HOW[c.how], mdl.model if mdl else "—", load,
-                     mdl.rated_load if mdl else None,
-                     format_number(100 * load / mdl.rated_load, 3) if mdl else "—",
-                     mdl.spring_rate if mdl else None, defl,
-                     mdl.solid_deflection if mdl else None,
-                     (mdl.solid_deflection - defl) if mdl else None, note))
-    s.add(Table(title="Spring selection per mount",
-                header=("Mount", "How", "Model", "Load", "Rated load", "Use [%]",
-                        "Spring rate", "Deflection", "Solid deflection", "Travel left",
-                        "Note"),
-                units=("", "", "", "force", "force", "", "stiffness", "length", "length",
-                       "length", ""),
-                rows=tuple(rows)))
+    s.add(selection_paragraph(done.catalogue, need, done.rounds),
+          selection_table(springs(a, done)))

@@ -6,6 +6,7 @@ from __future__ import annotations
 import math
 
 from reportgen_plugins.mechanics import quantity_text
+from reportgen_plugins.mechanics.catalogue_sheet import required_deflection_text
 
 from reportgen.units import STANDARD_GRAVITY, format_number
 
@@ -87,20 +88,8 @@ RESPONSE = (
     " complex amplitude A (A·A without conjugation). The total is the same for the vector"
     " sum of the mount forces.")
 
-SELECTION = (
-    "Each mount without its own stiffness gets a spring from the catalogue: the lightest"
-    " model rated for its static load that reaches the required static deflection and"
-    " keeps the travel allowance to solid. A stiffer spring draws more load, so the loads"
-    " are recomputed with the chosen springs and the choice repeated until it stops"
-    " changing. Cross-checks on the catalogue data: spring rate × rated deflection within"
-    " ±10 % of the rated load (Hooke's law; makers' tables round both), and travel left"
-    " to solid at least 50 % of the operating deflection (common practice).")
-
-
 def required_deflection(delta: float | None, f_limit: float | None,
                         stated: float | None, units: str) -> str:
-    if delta is None:
-        return "No running speed or deflection target: springs are chosen by load alone."
     parts = []
     if f_limit:
         parts.append(f"the deflection at which a spring alone on its load has f_n ="
@@ -108,9 +97,7 @@ def required_deflection(delta: float | None, f_limit: float | None,
                      f" {_len(STANDARD_GRAVITY / (2 * math.pi * f_limit) ** 2, units)}")
     if stated:
         parts.append(f"the stated minimum, {_len(stated, units)}")
-    head = f"Required static deflection of a chosen spring: {_len(delta, units)}"
-    return (f"{head}, the larger of {' and '.join(parts)}." if len(parts) > 1
-            else f"{head} ({parts[0]}).")
+    return required_deflection_text(delta, parts, units)
 
 
 def _len(value: float, units: str) -> str:
