@@ -23,8 +23,8 @@ from reportgen_plugins.rigid_body_mounts.method import (
     Mount,
     assemble,
     natural_modes,
-    static_equilibrium,
 )
+from reportgen_plugins.rigid_body_mounts.statics import static_equilibrium
 
 # Exact by definition (NIST SP 811, App. B): 1 in = 0.0254 m; 1 lbf = 0.45359237 kg × g_n.
 INCH = 0.0254

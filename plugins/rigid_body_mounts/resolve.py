@@ -21,7 +21,8 @@ from reportgen_plugins.mechanics.isolator_selection import (
 from reportgen.units import STANDARD_GRAVITY
 
 from .analysis import body_from_inputs, mounts_from_rows
-from .method import SQRT2, MountingError, assemble, static_equilibrium
+from .method import SQRT2, MountingError, assemble
+from .statics import static_equilibrium
 
 __all__ = ["MAX_ROUNDS", "Choice", "Resolved", "analysed_inputs", "catalogue_of",
            "required_deflection", "resolve"]
