@@ -73,19 +73,26 @@ def modes(s: Sheet, a: Analysis) -> None:
         lam = (2.0 * math.pi * float(f)) ** 2
         s.equation(f"f_{i}", f"sqrt(lambda_{i})/(2*pi)", "frequency", **{f"lambda_{i}": lam},
                    key=f"natural_frequency_{i}", key_result=True,
-                   description=f"Natural frequency of mode {i} (λ_{i} = ω², rad²/s², from"
-                               " K·φ = λ·M·φ)")
+                   description=f"Natural frequency of mode {i} (eigenvalue λ = ω² in rad²/s²"
+                               " of K·φ = λ·M·φ)")
     for i, share in enumerate(md.dominant_share, start=1):
         s.result(f"mode_{i}_dominant_share", float(share), "dimensionless", f"E_{i}",
                  f"Mode {i}: largest kinetic-energy share"
                  f" ({_word(md.dominant_coordinate[i - 1])})")
     header = ("Coordinate",) + tuple(f"Mode {i} ({format_number(float(f), 3)} Hz)"
                                       for i, f in enumerate(md.frequencies, start=1))
-    rows = tuple((LABELS[j],) + tuple(format_number(100.0 * float(md.energy_fractions[j, i]),
-                                                    3) for i in range(6))
+    rows = tuple((LABELS[j],) + tuple(_percent(float(md.energy_fractions[j, i]))
+                                      for i in range(6))
                  for j in range(6))
     s.add(Table(title="Kinetic-energy distribution of each mode [%] (columns sum to 100)",
                 header=header, rows=rows))
+
+
+def _percent(share: float) -> str:
+    """A share in percent to 0.1 % (a negative one, possible with products of inertia, shown
+    with its sign only when it reaches 0.05 %)."""
+    text = f"{100.0 * share:.1f}"
+    return "0.0" if text == "-0.0" else text
 
 
 def _word(coordinate: str) -> str:
