@@ -41,6 +41,16 @@ def assumptions(given: frozenset[str], estimated: bool) -> tuple[str, ...]:
         items.append("Excitation harmonic at the running speed (1 ×). With two excitations"
                      " their relative phase is unknown: their force peaks are added, a bound"
                      " for any phase (common practice).")
+    for load, axis, point, default in (
+            ("force_amplitude", "force_direction", "force", "the force acts along z (vertical)"),
+            ("unbalance", "rotor_axis", "rotor", "the rotor spins about z (vertical)")):
+        if load not in given:
+            continue
+        if axis not in given:
+            items.append(f"No {axis} stated: {default}.")
+        missing = [f"{point}_{a}" for a in "xyz" if f"{point}_{a}" not in given]
+        if missing:
+            items.append(f"{', '.join(missing)} not stated: taken at the centre of gravity.")
     return tuple(items)
 
 

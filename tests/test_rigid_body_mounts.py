@@ -73,7 +73,7 @@ def frequencies(doc) -> list[float]:
 def test_symmetric_mounts_in_the_cg_plane_decouple(rg_plugins):
     # Harris' Shock and Vibration Handbook, Ch. 3 (Eqs. 3.31 with every coupling term zero,
     # f_z = √(Σk_z/m)/2π, Eq. 3.37): each frequency from one stiffness sum over one inertia.
-    case = wave2_case("R1_")
+    case = wave2_case("R1_rigid_body_4_mounts_CG_plane_decoupled")
     doc = compute(make_job(case_calc(case, datum=(1.3, 0.8, 0.9))), rg_plugins)
     m = case["inputs"]["m"]["value"]
     i = case["inputs"]["inertia_about_CG"]["value"]
@@ -103,7 +103,7 @@ def test_mounts_below_the_cg_give_the_coupled_lateral_rocking_pair(rg_plugins):
     # K = [[Σk_x, −h·Σk_x], [−h·Σk_x, h²·Σk_x + Σk_z·x²]], M = diag(m, I_yy), roots of
     # m·I·λ² − (m·K22 + I·K11)·λ + K11·K22 − K12² = 0. The case file's status for the pair
     # is "from_memory" (the formula re-derived from the equations of motion).
-    case = wave2_case("R2_")
+    case = wave2_case("R2_rigid_body_4_mounts_below_CG_coupled_rocking")
     doc = compute(make_job(case_calc(case)), rg_plugins)
     m = case["inputs"]["m"]["value"]
     iyy = case["inputs"]["inertia_about_CG"]["value"]["Iyy"]
@@ -150,7 +150,7 @@ def test_turning_and_moving_the_datum_leaves_the_frequencies(rg_plugins, angle):
     # written in (the inertia tensor turned as J' = R·J·Rᵀ, products of inertia included).
     # The R2 layout (coupled modes) with equal horizontal stiffness in x and y, so that a
     # mount's stiffness is the same in any horizontal direction and the body is unchanged.
-    case = copy.deepcopy(wave2_case("R2_"))
+    case = copy.deepcopy(wave2_case("R2_rigid_body_4_mounts_below_CG_coupled_rocking"))
     for m in case["inputs"]["mounts"]["value"]:
         m["k"][1] = m["k"][0]
     base = frequencies(compute(make_job(case_calc(case)), rg_plugins))
@@ -182,7 +182,7 @@ def test_a_mount_in_tension_is_a_failing_check_not_an_input_error(rg_plugins):
 
 def test_frequency_ratio_default_and_rated_load_checks(rg_plugins):
     # f ≤ f_run/√2 (Thomson & Dahleh §3.5: T < 1 only above r = √2)
-    case = wave2_case("R1_")
+    case = wave2_case("R1_rigid_body_4_mounts_CG_plane_decoupled")
     calc = case_calc(case)
     calc["inputs"]["running_speed"] = "1480 rpm"
     calc["inputs"]["mounts"][0]["rated_load"] = "1.5 kN"  # W/4 = 2.08 kN: over
@@ -285,7 +285,7 @@ def test_sample_air_handler_heavy_corner_gets_the_bigger_spring(rg_plugins, tmp_
 def test_contract_of_the_calc_type(tmp_path, rg_plugins):
     from reportgen_plugins.rigid_body_mounts import RigidBodyMounts
 
-    calc = case_calc(wave2_case("R2_"))
+    calc = case_calc(wave2_case("R2_rigid_body_4_mounts_below_CG_coupled_rocking"))
     calc["inputs"].update(running_speed="1480 rpm", force_amplitude="400 N",
                           force_direction="x", force_z="0.3 m")
     assert_calc_contract(RigidBodyMounts(), calc, tmp_path, plugins=rg_plugins, pdf=False)
@@ -324,3 +324,46 @@ def test_a_catalogue_in_the_firms_template_folder_is_found_and_embedded(tmp_path
     with pytest.raises(JobError) as exc:
         load_job(folder / "job.toml", rg_plugins)
     assert "inputs.catalogue" in str(exc.value) and "not found" in str(exc.value)
+
+
+def test_every_fixed_name_and_the_vertical_force_transmissibility(rg_plugins):
+    # All the names issue 18 fixes, in one job. R1 decouples, so a vertical force at the CG
+    # drives the vertical mode alone, and the force through the mounts is the single-degree
+    # transmissibility with structural damping, |F_T|/F = |(1 + 2iζ)/(1 + 2iζ − r²)|,
+    # r = f/f_z (Thomson & Dahleh, 5th ed., §3.9 structural damping; Rao §9.10). A rotor
+    # spinning about z at the CG adds a force turning in the horizontal plane that the
+    # vertical term does not see; its peak adds (the stated bound for unknown phase).
+    case = wave2_case("R1_rigid_body_4_mounts_CG_plane_decoupled")
+    calc = case_calc(case, datum=(0.5, 0.7, 0.3))
+    calc["inputs"]["mounts"][0]["rated_load"] = "5 kN"
+    calc["inputs"].update(damping_ratio=0.04, running_speed="1480 rpm",
+                          force_amplitude="600 N", force_direction="z", force_x="0.5 m",
+                          force_y="0.7 m", force_z="0.3 m", unbalance="0.002 kg*m",
+                          rotor_x="0.5 m", rotor_y="0.7 m", rotor_z="0.3 m", rotor_axis="z")
+    calc["criteria"] = {"min_frequency_ratio": 2.0, "min_mount_load": "1 kN",
+                        "max_tilt": "0.2 deg", "min_decoupling_share": 0.9}
+    doc = compute(make_job(calc), rg_plugins)
+    m = case["inputs"]["m"]["value"]
+    w = 2 * math.pi * 1480 / 60
+
+    def trans(k: float) -> complex:  # (1 + 2iζ)/(1 + 2iζ − r²), r² = m·ω²/k
+        return (1 + 0.08j) / (1 + 0.08j - m * w * w / k)
+
+    kx, ky, kz = (sum(mt["k"][j] for mt in case["inputs"]["mounts"]["value"]) for j in range(3))
+    vertical = 600 * abs(trans(kz))
+    # the unbalance force U·ω²·(x̂ − i·ŷ) through the decoupled x and y modes; its largest
+    # magnitude over a cycle found by sampling the cycle
+    amp = np.array([0.002 * w * w * trans(kx), -1j * 0.002 * w * w * trans(ky)])
+    phase = np.linspace(0, 2 * np.pi, 200_001)
+    turning = float(np.max(np.hypot(*(amp[:, None] * np.exp(1j * phase)).real)))
+    assert result(doc, "total_transmitted_force") == pytest.approx(vertical + turning, rel=1e-8)
+    for n in range(1, 5):  # the symmetric layout shares both equally
+        assert result(doc, f"transmitted_force_{n}") == pytest.approx(
+            (vertical + turning) / 4, rel=1e-8)
+    checks = section_checks(doc.sections[0])
+    assert checks["decoupling"] == "pass" and checks["tilt"] == "pass"
+    assert checks["min-mount-load"] == "pass" and checks["rated-load-1"] == "pass"
+    # f ≤ f_run/2 with the stated ratio 2
+    assert all(checks[f"frequency-{n}"] == ("pass" if result(doc, f"natural_frequency_{n}")
+                                            <= 1480 / 60 / 2 else "fail")
+               for n in range(1, 7))
