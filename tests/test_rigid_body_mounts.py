@@ -27,7 +27,7 @@ from reportgen.testing import (
 )
 
 G = 9.80665  # standard gravity (CGPM 1901)
-SAMPLE = REPO / "sample_jobs" / "qep-107-ahu-rooftop.toml"
+SAMPLE = REPO / "sample_jobs" / "qep-118-ahu-rooftop.toml"
 CATALOGUE = REPO / "sample_jobs" / "catalogues" / "tollbrook-ts.csv"
 
 
