@@ -156,11 +156,15 @@ class Panel:
     y_range: tuple[float, float] | None = None
     #: shaded regions between two curves over the same x (a tolerance band)
     fills: tuple[Fill, ...] = ()
+    x_label: str = ""  # the panel's own x axis, in a grid (Figure.columns > 1)
+    equal_aspect: bool = False  # one unit on x as long as one on y (plans, mode shapes)
+    title: str = ""  # a small multiple's own heading
 
 
 @dataclass(**_frozen)
 class Figure:
-    """A declarative plot: panels stacked vertically, sharing the x axis."""
+    """A declarative plot: panels stacked vertically, sharing the x axis; with ``columns``
+    above 1, small multiples: a grid filled row by row, each panel with its own x axis."""
 
     key: str
     caption: str
@@ -169,6 +173,7 @@ class Figure:
     panels: tuple[Panel, ...]
     x_scale: Literal["linear", "log"] = "linear"
     x_range: tuple[float, float] | None = None
+    columns: int = 1
 
 
 @dataclass(**_frozen)

@@ -1,6 +1,7 @@
-"""Isolator catalogues (rigid_body_mounts/catalogue.py): reading CSV and TOML with errors
-that name file, row and column; the consistency and travel checks; model selection; and a
-rooftop air handler (invented) whose heavy corner needs a bigger spring."""
+"""Isolator catalogues (mechanics/catalogue.py, mechanics/isolator_selection.py): reading CSV
+and TOML with errors that name file, row and column; the consistency and travel checks;
+model selection; and a rooftop air handler (invented) whose heavy corner needs a bigger
+spring."""
 
 from __future__ import annotations
 
@@ -8,23 +9,22 @@ import math
 from importlib import resources
 
 import pytest
-from reportgen_plugins.rigid_body_mounts.analysis import body_from_inputs
-from reportgen_plugins.rigid_body_mounts.catalogue import (
-    CatalogueError,
+from reportgen_plugins.mechanics.catalogue import CatalogueError, read_catalogue
+from reportgen_plugins.mechanics.isolator_selection import (
     consistency,
-    read_catalogue,
     required_static_deflection,
     select,
     select_for_loads,
     settle_selection,
     travel_check,
 )
+from reportgen_plugins.rigid_body_mounts.analysis import body_from_inputs
 from reportgen_plugins.rigid_body_mounts.method import (
     Mount,
     assemble,
     natural_modes,
-    static_equilibrium,
 )
+from reportgen_plugins.rigid_body_mounts.statics import static_equilibrium
 
 # Exact by definition (NIST SP 811, App. B): 1 in = 0.0254 m; 1 lbf = 0.45359237 kg × g_n.
 INCH = 0.0254

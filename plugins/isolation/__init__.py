@@ -25,7 +25,7 @@ from reportgen import (
 )
 from reportgen.units import STANDARD_GRAVITY
 
-from . import checks, figures, text, working
+from . import checks, figures, selection, text, working
 from .method import (
     EXCITATION_INPUTS,
     ISOLATOR_INPUTS,
@@ -106,6 +106,7 @@ class Isolation(CalcType):
         InputSpec(name="rated_deflection", symbol="delta_rated", description="Rated"
                   " deflection of the selected mount (maker's data)", dimension="length",
                   required=False, positive=True, maximum=1.0),
+        selection.CATALOGUE_INPUT,
     )
     criteria = (
         InputSpec(name="min_efficiency", symbol="eta_min", description="Required isolation"
@@ -153,6 +154,7 @@ class Isolation(CalcType):
                                  ISOLATOR_INPUTS) + (f"; found {', '.join(isolator)}"
                                                      if isolator else "")))
         problems += _layout_problems(inputs, given)
+        problems += selection.problems(inputs)
         if not problems:
             f = forcing_frequency(inputs)
             fn = natural_frequency(total_stiffness(inputs, given), inputs["mass"])
@@ -176,6 +178,7 @@ class Isolation(CalcType):
                                   p.get("mount_positions"), len(mount), units))
         if uneven and ld.P_min > 0:
             s.add(Note(text=text.per_position_note(ld.P_min, tg.delta_req, tg.k_m_req, units)))
+        selection.write(s, p, mount, tg.delta_req, units)
         peak = working.peak(s, p["damping_ratio"])
         checks.write(s, p, crit, iso, ld, tg, peak, uneven, units)
         s.add(figures.transmissibility_chart(iso.r, iso.T, p["damping_ratio"], tg.T_req,

@@ -18,11 +18,9 @@ from .method import (
     Mount,
     MountingError,
     RigidBodyModel,
-    StaticResult,
     assemble,
     box_inertia,
     natural_modes,
-    static_equilibrium,
 )
 from .response import (
     Excitation,
@@ -31,6 +29,7 @@ from .response import (
     harmonic_force,
     rotating_unbalance,
 )
+from .statics import StaticResult, static_equilibrium
 
 __all__ = [
     "Analysis",

@@ -11,10 +11,9 @@ Conventions (every function below follows them):
 - Mounts are point springs (no rotational stiffness) with principal stiffnesses along three
   orthogonal axes, by default the datum axes; gravity (overturning) stiffness is left out of
   the frequencies, as in the handbook model, and used only for the tip-over check.
-- Signs of forces: ``mount_forces`` of the static result are forces exerted BY the mounts ON
-  the equipment; ``loads`` are the compression-positive loads IN the mounts (the upward force
-  each mount exerts on the equipment); dynamic forces are those the mounts pass TO the
-  support (their magnitudes are what is reported).
+- Signs of forces (statics.py, response.py): static ``mount_forces`` are exerted BY the
+  mounts ON the equipment; ``loads`` are compression-positive loads IN the mounts; dynamic
+  forces are those the mounts pass TO the support (their magnitudes are reported).
 """
 
 from __future__ import annotations
@@ -26,8 +25,6 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import linalg
 
-from reportgen.units import STANDARD_GRAVITY
-
 __all__ = [
     "COORDINATES",
     "DEFAULT_DAMPING_RATIO",
@@ -37,13 +34,11 @@ __all__ = [
     "Mount",
     "MountingError",
     "RigidBodyModel",
-    "StaticResult",
     "assemble",
     "box_inertia",
     "frequency_limit",
     "inertia_tensor",
     "natural_modes",
-    "static_equilibrium",
 ]
 
 COORDINATES = ("x", "y", "z", "rx", "ry", "rz")
@@ -331,83 +326,3 @@ def frequency_limit(running_speed: float, min_ratio: float = SQRT2) -> float:
     by default because transmissibility falls below 1 only above r = √2 (Thomson & Dahleh,
     §3.5)."""
     return running_speed / min_ratio
-
-
-# ------------------------------------------------------------------ statics
-
-
-@dataclass(frozen=True, slots=True, kw_only=True)
-class StaticResult:
-    """The body at rest under its weight.
-
-    ``displacement``: q at the CG (m, rad). ``mount_forces``: force of each mount on the
-    equipment (N, datum axes). ``loads``: vertical load in each mount, compression positive
-    (= the upward force on the equipment; negative means tension). ``axial_loads``: the same
-    along each mount's own r axis. ``deflections``: vertical deflection of each mount point,
-    positive downward. ``stability_factor``: the share of the mounts' restoring stiffness
-    left, in the weakest direction, after the weight's overturning effect (1: none lost;
-    ≤ 0: the body tips).
-    """
-
-    displacement: np.ndarray
-    mount_forces: np.ndarray
-    loads: np.ndarray
-    axial_loads: np.ndarray
-    deflections: np.ndarray
-    tilt_x: float
-    tilt_y: float
-    weight: float
-    stability_factor: float
-
-    @property
-    def in_tension(self) -> tuple[bool, ...]:
-        return tuple(bool(p < 0.0) for p in self.loads)
-
-    @property
-    def tilt(self) -> float:
-        """The base's tilt from level, √(θx² + θy²) (rad): for small rotations the angle
-        between the body's z axis and the vertical, whatever the direction."""
-        return math.hypot(self.tilt_x, self.tilt_y)
-
-
-def static_equilibrium(model: RigidBodyModel, gravity: float = STANDARD_GRAVITY) -> StaticResult:
-    """K·u = [0, 0, −m·g, 0, 0, 0] (the weight acts at the CG, so it has no moment about it);
-    each mount's force on the equipment f_i = −K_i·T_i·u.
-
-    A mount in tension is a result, not an error. Raises :class:`MountingError` when the
-    weight would tip the body over: the overturning stiffness of the mount preloads,
-    G_i = (f_i·r_i)·I − ½(f_i r_iᵀ + r_i f_iᵀ) on the rotations (the second-order work of a
-    constant force at a rotating point, derived from the potential energy), added to K must
-    leave it positive definite (Lagrange–Dirichlet).
-    """
-    weight = model.body.mass * gravity
-    load = np.array([0.0, 0.0, -weight, 0.0, 0.0, 0.0])
-    u = linalg.solve(model.stiffness_matrix, load, assume_a="pos")
-    point = model.transforms @ u  # (N, 3) displacement of each mount point
-    forces = -np.einsum("nab,nb->na", model.mount_stiffness, point)
-    axes_r = np.array([m.axis_r() for m in model.mounts])
-    factor = _stability_factor(model, forces)
-    if factor <= 0.0:
-        raise MountingError(
-            "the equipment would tip over on these mounts: the weight's overturning moment"
-            " about the mounts exceeds their restoring stiffness (centre of gravity too high"
-            " for the mount spacing and vertical stiffness); spread the mounts, stiffen them"
-            " or lower the centre of gravity", field="mounts")
-    return StaticResult(
-        displacement=u, mount_forces=forces, loads=forces[:, 2].copy(),
-        axial_loads=np.einsum("na,na->n", forces, axes_r), deflections=-point[:, 2],
-        tilt_x=float(u[3]), tilt_y=float(u[4]), weight=weight, stability_factor=factor)
-
-
-def _stability_factor(model: RigidBodyModel, forces: np.ndarray) -> float:
-    """Smallest μ of (K + K_g)·φ = μ·K·φ, K_g the preloads' overturning stiffness."""
-    r = model.offsets
-    fr = np.einsum("na,na->n", forces, r)
-    g_rot = (fr.sum() * np.eye(3)
-             - 0.5 * (np.einsum("na,nb->ab", forces, r) + np.einsum("na,nb->ab", r, forces)))
-    k = model.stiffness_matrix
-    k_total = k.copy()
-    k_total[3:, 3:] += g_rot
-    return float(linalg.eigh(k_total, k, eigvals_only=True)[0])
-
-

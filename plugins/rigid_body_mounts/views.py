@@ -10,7 +10,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .method import SQRT2, Modes, RigidBodyModel, StaticResult, frequency_limit
+from .method import SQRT2, Modes, RigidBodyModel, frequency_limit
+from .statics import StaticResult
 
 __all__ = ["FrequencyChart", "ModeView", "PlanView", "frequency_chart", "mode_views",
            "plan_view", "support_outline"]

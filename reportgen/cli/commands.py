@@ -38,6 +38,7 @@ def list_plugins() -> int:
                 dim = DIMENSIONS[sp.dimension]
                 unit = f" [{dim.si_label or '-'}]" if sp.dimension != "dimensionless" else ""
                 need = "required" if sp.required and sp.default is None else (
+                    f"default {sp.default!r}" if isinstance(sp.default, str) else
                     f"default {sp.default:g}{' ' + dim.si_label if dim.si_label else ''}"
                     if sp.default is not None else "optional")
                 print(f"      {sp.name:<24}{sp.description}{unit}; {need}")

@@ -488,6 +488,7 @@ class _Validator:
         self._files: dict[str, DataFile] = {}  # the calc being read's data files
         self._sources: dict[str, str] = {}  # "inputs.mass" -> the source it names
         self._spreads: dict[str, Spread] = {}  # input -> its range or tolerance
+        self.template_dir: Path | None = None  # a firm's folder: data files not beside the job
 
     def add(self, message: str, *, calc: str = "", field: str = "") -> None:
         self.problems.append(Problem(self.fname, message, calc, field))
@@ -593,6 +594,7 @@ class _Validator:
             history.append(RevisionEntry(revision=t["revision"], date=date,
                                          description="Issue"))
         template_dir = None if self.archived else self._folder(pkg, "template_dir", path)
+        self.template_dir = template_dir
         previous = None
         if pkg.get("previous_package") and not self.archived:
             p = pkg["previous_package"]
@@ -950,11 +952,26 @@ class _Validator:
             data = read_job_file(self.folder, raw, fld, limit=spec.max_bytes,
                                  file=self.fname, what="data file")
         except JobError as exc:
-            self.problems.extend(dataclasses.replace(p, calc=calc) for p in exc.problems)
-            return None
+            shared = self._template_file(raw, spec, fld)
+            if shared is None:
+                self.problems.extend(dataclasses.replace(p, calc=calc) for p in exc.problems)
+                return None
+            data = shared
         found = DataFile.of("/".join(path_parts(raw)), data)
         self._files[spec.name] = found
         return found
+
+    def _template_file(self, raw: str, spec: InputSpec, fld: str) -> bytes | None:
+        """A data file the firm keeps in its template folder (an isolator catalogue), by the
+        same rule; None if there is none. The package embeds it under the same relative
+        name, so ``reportgen verify`` finds it beside the unpacked job."""
+        if self.template_dir is None:
+            return None
+        try:
+            return read_job_file(self.template_dir, raw, fld, limit=spec.max_bytes,
+                                 file=self.fname, what="data file")
+        except JobError:
+            return None
 
     def with_data_files(self, attachments: tuple[JobAttachment, ...],
                         calcs: list[CalcSpec]) -> tuple[JobAttachment, ...]:

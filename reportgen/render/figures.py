@@ -19,7 +19,10 @@ FIGURE_WIDTH_IN = 6.3
 
 def figure_inches(fig: Figure) -> tuple[float, float]:
     """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.7 in more
-    for each further panel. Known before drawing, so the layout can start without it."""
+    for each further panel (in a grid: 2.1 in per row of small multiples). Known before
+    drawing, so the layout can start without it."""
+    if fig.columns > 1:
+        return FIGURE_WIDTH_IN, 2.1 * -(-len(fig.panels) // fig.columns)
     return FIGURE_WIDTH_IN, 2.5 + 1.7 * (len(fig.panels) - 1)
 
 
@@ -41,10 +44,14 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
         "legend.frameon": False, "xtick.direction": "in", "ytick.direction": "in",
         "path.simplify": True,
     })
-    n = len(fig.panels)
-    f, axes = plt.subplots(n, 1, figsize=figure_inches(fig), sharex=True, squeeze=False)
+    n, cols = len(fig.panels), max(1, fig.columns)
+    grid = cols > 1
+    f, axes = plt.subplots(-(-n // cols), cols, figsize=figure_inches(fig), sharex=not grid,
+                           squeeze=False)
     try:
-        for ax, panel in zip(axes[:, 0], fig.panels, strict=True):
+        for ax in axes.flat[n:]:
+            ax.set_visible(False)
+        for ax, panel in zip(axes.flat[:n], fig.panels, strict=True):
             colour = 0
             for band in panel.bands:
                 ax.axvspan(band.x_low, band.x_high, color="#e8b4a0", alpha=0.35, lw=0,
@@ -81,13 +88,21 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
             ax.set_ylabel(panel.y_label)
             if panel.y_range:
                 ax.set_ylim(*panel.y_range)
+            if panel.equal_aspect:
+                ax.set_aspect("equal", adjustable="box" if grid else "datalim")
+            if panel.title:
+                ax.set_title(panel.title, fontsize=6.5)
+            if grid:
+                ax.set_xscale(fig.x_scale)
+                ax.set_xlabel(panel.x_label or fig.x_label)
             if ax.get_legend_handles_labels()[0]:  # only labelled artists get a legend
-                ax.legend(loc="best")
+                ax.legend(loc="best", fontsize=6.5 if grid else None)
         last = axes[-1, 0]
-        last.set_xscale(fig.x_scale)
-        if fig.x_range:
-            last.set_xlim(*fig.x_range)
-        last.set_xlabel(fig.x_label)
+        if not grid:
+            last.set_xscale(fig.x_scale)
+            if fig.x_range:
+                last.set_xlim(*fig.x_range)
+            last.set_xlabel(fig.x_label)
         f.tight_layout(pad=0.4)
         buf = io.BytesIO()
         f.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
