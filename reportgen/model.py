@@ -78,6 +78,19 @@ class ResultRow:
 
 
 @dataclass(**_frozen)
+class ResultList:
+    """A result that is a list of records (a spectrum's band levels): results.json writes
+    ``key: [{field: value, ...}, ...]`` with the numbers in SI (``units``: one dimension
+    per field). The package shows such a list in a Table block of the calc's own."""
+
+    key: str
+    description: str
+    fields: tuple[str, ...]
+    units: tuple[str, ...]
+    rows: tuple[tuple[float, ...], ...]
+
+
+@dataclass(**_frozen)
 class ResultsTable:
     rows: tuple[ResultRow, ...]
     title: str = "Results"
@@ -270,6 +283,7 @@ class Section:
     number: str = ""
     sources: tuple[Source, ...] = ()
     verification_cases: tuple[str, ...] = ()
+    result_lists: tuple[ResultList, ...] = ()
 
 
 @dataclass(**_frozen)
@@ -337,8 +351,8 @@ class Document:
 # ---------------------------------------------------------------- JSON
 
 _TYPES = {cls.__name__: cls for cls in (*BLOCK_TYPES, Quantity, InputRow, ResultRow, Series,
-                                        Marker, Band, Panel, VerificationRow, Source, Section,
-                                        RevisionEntry, PackageInfo, Document)}
+                                        ResultList, Marker, Band, Panel, VerificationRow, Source,
+                                        Section, RevisionEntry, PackageInfo, Document)}
 
 
 def to_json(node: Any) -> Any:

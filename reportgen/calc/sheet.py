@@ -20,6 +20,7 @@ from reportgen.model import (
     Check,
     Equation,
     Quantity,
+    ResultList,
     ResultRow,
     Status,
 )
@@ -56,6 +57,7 @@ class CalcOutput:
     results: tuple[ResultRow, ...]
     checks: tuple[Check, ...]
     purpose: str = ""
+    result_lists: tuple[ResultList, ...] = ()
 
 
 class Sheet:
@@ -69,6 +71,7 @@ class Sheet:
         self._blocks: list[Block] = []
         self._results: dict[str, ResultRow] = {}
         self._checks: list[Check] = []
+        self._lists: dict[str, ResultList] = {}
 
     def add(self, *blocks: Block) -> None:
         self._blocks.extend(blocks)
@@ -110,6 +113,14 @@ class Sheet:
                                        key_result=key_result)
         return value
 
+    def result_list(self, key: str, description: str, fields: dict[str, str],
+                    rows: list[tuple[float, ...]] | tuple[tuple[float, ...], ...]) -> None:
+        """Record a result that is a list of records (``fields``: name -> dimension, each
+        row one SI number per field), written to results.json as a list of objects."""
+        self._lists[key] = ResultList(key=key, description=description,
+                                      fields=tuple(fields), units=tuple(fields.values()),
+                                      rows=tuple(tuple(float(v) for v in r) for r in rows))
+
     def check(self, id: str, description: str, *, value: float | None = None,
               limit: float | None = None, dimension: str = "dimensionless",
               comparison: str = "", status: Status | None = None, note: str = "") -> Check:
@@ -132,7 +143,8 @@ class Sheet:
 
     def output(self, purpose: str = "") -> CalcOutput:
         return CalcOutput(blocks=tuple(self._blocks), results=tuple(self._results.values()),
-                          checks=tuple(self._checks), purpose=purpose)
+                          checks=tuple(self._checks), purpose=purpose,
+                          result_lists=tuple(self._lists.values()))
 
 
 #: A value within this relative distance of its limit is on the limit (see on_limit).

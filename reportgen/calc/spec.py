@@ -16,7 +16,7 @@ from typing import IO, Any, Literal
 __all__ = ["Column", "DataFile", "InputSpec", "VerificationCase"]
 
 Kind = Literal["quantity", "integer", "pair", "points", "choice", "text", "table", "file",
-               "criterion"]
+               "criterion", "texts"]
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -46,6 +46,8 @@ class InputSpec:
     - "quantity" (the default), "integer": one value;
     - "pair": two quantities (a range), "points": a list of [x, y] pairs;
     - "choice": one of ``choices`` (text); "text": free text (``max_length``);
+      "texts": a list of texts (names, e.g. of columns; ``min_rows`` to ``max_rows`` of
+      them, each at most ``max_length``, none twice), the calc gets a tuple of str;
     - "table": an array of tables (``[[calc.inputs.NAME]]``), one per row, each with the
       ``columns`` (at least ``min_rows``, at most ``max_rows`` rows); the calc gets a tuple
       of rows, each a dict of SI values (text for text columns), absent optional columns

@@ -28,6 +28,7 @@ from reportgen.model import (
     InputRow,
     InputsTable,
     Quantity,
+    ResultList,
     ResultRow,
     Section,
     Table,
@@ -159,7 +160,8 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
         plugin_package=reg.package, title=spec.title, purpose=out.purpose or ct.purpose,
         blocks=blocks + tuple(out.blocks), results=tuple(out.results),
         checks=tuple(out.checks), verification=verification, notes=spec.notes,
-        sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases))
+        sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases),
+        result_lists=tuple(out.result_lists))
 
 
 def compute_section(spec: CalcSpec, reg: RegisteredCalc, units: str,
@@ -205,9 +207,10 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
             source = named
         if sp.kind == "table" or (sp.kind == "criterion" and not isinstance(value, str)):
             continue  # a table of its own (_input_tables)
-        if sp.kind in ("choice", "text", "file", "criterion"):
+        if sp.kind in ("choice", "text", "file", "criterion", "texts"):
             text = (f"{value.name} ({value.size} bytes, SHA-256 {value.sha256[:12]}…)"
-                    if sp.kind == "file" else str(value))
+                    if sp.kind == "file" else ", ".join(value) if sp.kind == "texts"
+                    else str(value))
             rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
                                  quantity=None, text=text,
                                  source=named or ("job file" if sp.name in given else source)))
@@ -268,7 +271,14 @@ def check_output(out: Any) -> str:
             return f"result {r.key} has unknown dimension {q.dimension!r}"
         if not isinstance(q.value, float) or not math.isfinite(q.value):
             return f"result {r.key} is not a finite number ({q.value!r})"
-    keys = [r.key for r in out.results]
+    for rl in out.result_lists:
+        if not isinstance(rl, ResultList) or len(rl.fields) != len(rl.units) or any(
+                len(r) != len(rl.fields) or not all(isinstance(v, float) and math.isfinite(v)
+                                                    for v in r) for r in rl.rows):
+            return f"malformed result list {getattr(rl, 'key', rl)!r}"
+        if any(u not in DIMENSIONS for u in rl.units):
+            return f"result list {rl.key} has an unknown dimension"
+    keys = [r.key for r in out.results] + [rl.key for rl in out.result_lists]
     if len(keys) != len(set(keys)):
         return "duplicate result keys"
     for c in out.checks:

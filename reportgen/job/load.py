@@ -795,6 +795,8 @@ class _Validator:
         try:
             if spec.kind in ("choice", "text"):
                 return _text_value(raw, spec)
+            if spec.kind == "texts":
+                return _texts_value(raw, spec)
             if spec.kind == "integer":
                 if isinstance(raw, bool) or not isinstance(raw, int):
                     raise UnitProblem(f"expected a whole number, found {raw!r}")
@@ -965,6 +967,25 @@ def empty_date_allowed() -> bool:
     problems: list[Problem] = []
     _Validator("", problems)._date({"d": ""}, "d", "")
     return not problems
+
+
+def _texts_value(raw: Any, spec: InputSpec) -> tuple[str, ...]:
+    if not isinstance(raw, list) or not all(isinstance(r, str) for r in raw):
+        raise UnitProblem(f"expected a list of names such as [\"x\", \"y\", \"z\"], found"
+                          f" {_short(raw)}")
+    if not spec.min_rows <= len(raw) <= spec.max_rows:
+        raise UnitProblem(f"{len(raw)} names; give from {spec.min_rows} to {spec.max_rows}")
+    for r in raw:
+        problem = text_problem(r, spec.name) if r.strip() else "a name is empty"
+        if problem:
+            raise UnitProblem(str(problem))
+        if len(r) > spec.max_length:
+            raise UnitProblem(f"the name {r[:20]!r}… is longer than {spec.max_length}"
+                              " characters")
+    if len(set(raw)) != len(raw):
+        twice = next(r for r in raw if raw.count(r) > 1)
+        raise UnitProblem(f"{twice!r} is named twice")
+    return tuple(raw)
 
 
 def _criterion_example(spec: InputSpec, library: CriteriaLibrary) -> str:

@@ -266,6 +266,10 @@ def _value_schema(spec: InputSpec) -> dict[str, Any]:
     if spec.kind == "text":
         return {"type": "string", "maxLength": spec.max_length,
                 "description": spec.description}
+    if spec.kind == "texts":
+        return {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
+                "uniqueItems": True, "description": spec.description,
+                "items": {"type": "string", "minLength": 1, "maxLength": spec.max_length}}
     if spec.kind == "file":
         suffixes = "|".join(re.escape(f) for f in spec.formats)
         return {"type": "string", "description": spec.description + " (a file in the job's"
