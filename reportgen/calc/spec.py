@@ -59,7 +59,8 @@ class InputSpec:
       (:mod:`reportgen.calc.criteria`), checked when the job is loaded (an unknown name is
       refused with the nearest names); the calc gets the name as registered. With
       ``columns`` the job may instead give its own curve as an array of tables, read like
-      a "table" input (the calc gets the tuple of rows).
+      a "table" input (the calc gets the tuple of rows). ``choices``, if given, are the
+      values of the criterion's ``quantity`` attribute the calc can use.
     """
 
     name: str

@@ -887,6 +887,14 @@ class _Validator:
                     else "; `reportgen criteria` lists the known criteria")
             self.add(f"unknown criterion {raw!r}{hint}", calc=calc, field=fld)
             return None
+        kind = getattr(found, "quantity", None)
+        if spec.choices and kind not in spec.choices:
+            fits = [n for n in self.library.names()
+                    if getattr(self.library.get(n), "quantity", None) in spec.choices]
+            self.add(f"criterion {found.name!r} is a criterion of {kind}; this calc takes"
+                     f" criteria of {' or '.join(spec.choices)}, such as"
+                     f" {', '.join(fits[:4]) or 'none installed'}", calc=calc, field=fld)
+            return None
         return str(found.name)
 
     def _file(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> DataFile | None:
