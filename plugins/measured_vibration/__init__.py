@@ -147,7 +147,11 @@ class MeasuredVibration(CalcType):
         try:
             analysis_of(inputs, mode == "ppv")
         except DataFileError as exc:
-            return [(field_of(exc), str(exc))]
+            field = field_of(exc)
+            # a setting at fault is named as the field; a column of the file in the message
+            where = exc.file + (f", line {exc.row}" if exc.row is not None else "")
+            return [(field, f"{where}: {exc.message}" if field != "inputs.data_file"
+                     else str(exc))]
         return []
 
     def compute(self, ctx: CalcContext) -> CalcOutput:
