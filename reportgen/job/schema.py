@@ -6,6 +6,7 @@ inputs from its InputSpecs, and each dimension's unit spellings from pint's regi
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 import re
 from typing import Any
@@ -309,8 +310,11 @@ def _wrapped(spec: InputSpec, inputs: bool) -> dict[str, Any]:
     """An input's value, plain or as a table { value, source, tolerance }; a quantity
     input may carry a range or a tolerance in its text."""
     plain = _value_schema(spec)
-    if spec.kind == "table" or (spec.kind == "criterion" and spec.columns):
+    if spec.kind == "table":
         return plain
+    if spec.kind == "criterion" and spec.columns:  # a name (plain or wrapped), or a table
+        named = _wrapped(dataclasses.replace(spec, columns=()), inputs)
+        return {"anyOf": [named, plain["anyOf"][1]], "description": spec.description}
     values = [plain]
     spread = spec.kind == "quantity" and inputs and spec.rangeable
     if spread:
