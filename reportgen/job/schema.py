@@ -11,6 +11,7 @@ import functools
 import re
 from typing import Any
 
+from reportgen.calc.criteria import CriteriaLibrary, load_criteria, normalise
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, InputSpec
 from reportgen.job.load import (
@@ -251,10 +252,31 @@ def _column_schema(col: Column) -> dict[str, Any]:
     return {**s, "description": col.description + unit}
 
 
+#: the criteria library of the schema being written (job_schema sets it for its call)
+_LIBRARY: list[CriteriaLibrary] = []
+
+
 def _criterion_name(spec: InputSpec) -> dict[str, Any]:
-    # the names depend on the plugins and the firm's folder: checked when the job is loaded
-    return {"type": "string", "minLength": 1, "description": spec.description
-            + " (the name of a criterion; `reportgen criteria` lists them)"}
+    """A criterion's name: any spelling (case, spaces, '-', '_') of a name or alias of the
+    installed library whose quantity the calc takes. A firm's own curves (criteria/ in its
+    template folder) are not in the schema: `reportgen check` knows them."""
+    out: dict[str, Any] = {"type": "string", "minLength": 1, "description": spec.description
+                           + " (the name of a criterion; `reportgen criteria` lists them)"}
+    if not _LIBRARY:
+        return out
+    names = []
+    for entry in _LIBRARY[-1]:
+        c = entry.criterion
+        if spec.choices and getattr(c, "quantity", None) not in spec.choices:
+            continue
+        names += [entry.name, *getattr(c, "aliases", ())]
+    sep = r"[\s_-]*"
+    alternatives = sorted({sep.join(f"[{ch}{ch.upper()}]" if ch.upper() != ch else
+                                    re.escape(ch) for ch in normalise(n)) for n in names})
+    if alternatives:
+        out["pattern"] = f"^{sep}(?:{'|'.join(alternatives)}){sep}$"
+        out["examples"] = sorted(names)[:3]
+    return out
 
 
 def _value_schema(spec: InputSpec) -> dict[str, Any]:
@@ -405,7 +427,11 @@ def _calc_variant(name: str, ct: Any) -> dict[str, Any]:
 def job_schema(plugins: PluginSet) -> dict[str, Any]:
     """The job format as a draft 2020-12 JSON Schema: one variant per calc type, chosen
     by ``plugin`` (a discriminated ``oneOf``, which editors' language servers follow)."""
-    variants = [_calc_variant(n, plugins.calcs[n].calc_type) for n in plugins.names()]
+    _LIBRARY.append(load_criteria(plugins))
+    try:
+        variants = [_calc_variant(n, plugins.calcs[n].calc_type) for n in plugins.names()]
+    finally:
+        _LIBRARY.pop()
     package_props = {k: _package_field(k, req) for k, req in PACKAGE_KEYS.items()}
     return {
         "$schema": "https://json-schema.org/draft/2020-12/schema",
