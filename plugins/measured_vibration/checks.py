@@ -92,7 +92,7 @@ def band_checks(sheet: Sheet, analysis: Analysis, criterion: Criterion | None
                    if got.next and got.exceedance_db is not None else "")
             sheet.check(f"class-{channel_key(ch.channel)}" if len(analysis.channels) > 1
                         else "class", f"Channel {ch.channel}: most stringent built-in curve"
-                        f" met", status="info", note=met + nxt)
+                        f" met: {got.met or 'none'}", status="info", note=met + nxt)
     return out
 
 

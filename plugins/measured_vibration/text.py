@@ -30,7 +30,10 @@ METHOD_PPV = (
     " lower edge). The dominant frequency of the peak is taken from the zero crossings of the"
     " half cycle that holds it (f = 1/(2·half-period)), the reading of the guideline"
     " documents; the guideline value is read from the criterion at that frequency. Where the"
-    " half cycle is cut by the record's ends, the lowest guideline value is used."
+    " half cycle is cut by the record's ends, the lowest guideline value is used. Only the"
+    " largest peak of each channel is assessed: a smaller event at a lower frequency, where the"
+    " guideline value is lower, can lie closer to its own value. Where the time history shows"
+    " such events, assess them separately (a record cut around each event)."
 )
 
 

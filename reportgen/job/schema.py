@@ -54,6 +54,8 @@ KNOWN_DIFFERENCES = {
                         " number), and a prefixed spelling pint reads as another unit"
                         " ('min' is a minute, not a milli-inch)",
     "whole-float": "a whole number written as a float (3.0) where an integer is expected",
+    "criteria-library": "a criterion named from a firm's own curves (criteria/ in its"
+                        " template folder): the schema lists the installed library only",
 }
 
 
