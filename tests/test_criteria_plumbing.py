@@ -182,3 +182,14 @@ def test_the_hook_gets_the_api_version_and_the_template_folder(plugins, tmp_path
     spy.reportgen_register_criteria = hookimpl(lambda context: seen.append(context) or [])
     load_criteria(load_plugin_set(extra=[("spy", spy)], entry_points=False), tmp_path)
     assert seen == [{"api_version": hookspecs.API_VERSION, "template_dir": tmp_path}]
+
+
+def test_criteria_command_lists_a_firm_s_curves_and_refuses_a_missing_folder(tmp_path, capsys):
+    (tmp_path / "criteria").mkdir()
+    (tmp_path / "criteria" / "lab.csv").write_text(FIRM_CSV, encoding="utf-8")
+    assert main(["criteria", "--json", "--template-dir", str(tmp_path)]) == 0
+    rows = json.loads(capsys.readouterr().out)["criteria"]
+    assert any(r["name"] == "IMG-FLOOR-1" and "Invented instrument maker" in r["source"]
+               for r in rows)
+    assert main(["criteria", "--template-dir", str(tmp_path / "nope")]) == 2
+    assert "not a folder" in capsys.readouterr().err

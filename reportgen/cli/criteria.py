@@ -11,7 +11,7 @@ from typing import Any
 
 from reportgen.calc.criteria import CriteriaLibrary, RegisteredCriterion, load_criteria
 from reportgen.calc.plugin_set import load_plugins
-from reportgen.errors import ExitCode
+from reportgen.errors import ExitCode, JobError, Problem
 
 __all__ = ["criteria_command", "describe"]
 
@@ -34,6 +34,8 @@ def describe(entry: RegisteredCriterion) -> dict[str, Any]:
 
 
 def criteria_command(template_dir: Path | None, as_json: bool) -> int:
+    if template_dir is not None and not template_dir.is_dir():
+        raise JobError(Problem(str(template_dir), "--template-dir is not a folder"))
     library = load_criteria(load_plugins(), template_dir)
     rows = [describe(e) for e in library]
     if as_json:

@@ -48,7 +48,8 @@ def _calc(inputs, criteria=None):
 
 
 def test_a_sine_at_a_band_centre_gives_a_over_root_2(plugins, tmp_path):
-    # T1 (IEC 61260-1 exact centre 12.589 Hz; a sine of amplitude A has rms A/√2): 2 %
+    # T1_band_rms_of_a_sine_centre_and_edge (IEC 61260-1 exact centre 12.589 Hz; a sine of
+    # amplitude A has rms A/√2): 2 %
     a = CASES["T1"]["inputs"]["A_peak_velocity"]["value"]
     f0 = CASES["T1"]["inputs"]["tone_frequencies"]["value"][0]
     fs = 512.0
@@ -65,11 +66,16 @@ def test_a_sine_at_a_band_centre_gives_a_over_root_2(plugins, tmp_path):
     skirt = CASES["T1"]["expected"]["centre_12.5_band16_butterworth3"]["value"]
     assert rows.rows[12][2] == pytest.approx(skirt, rel=0.02)
     assert not any(k.startswith("criterion_ratio") for k in res)  # no criterion given
+    # T0_third_octave_band_table_1_to_100Hz: exact base-ten centres (IEC 61260-1), 1e-12
+    centres = CASES["T0"]["expected"]["f_mid_exact"]["value"][:20]
+    assert [r[0] for r in rows.rows] == pytest.approx(centres, rel=1e-12)
+    assert [r[1] for r in rows.rows][-4:] == [40.0, 50.0, 63.0, 80.0]
     assert section.verification and all(v.agrees for v in section.verification)
 
 
 def test_white_noise_gives_the_root_of_density_times_bandwidth(plugins, tmp_path):
-    # T2: one-sided velocity PSD S; band rms = √(S·B_noise), B_noise of the 3rd-order
+    # T2_band_limited_white_noise_band_rms: one-sided velocity PSD S; band rms =
+    # √(S·B_noise), B_noise of the 3rd-order
     # Butterworth band-pass (formula_confirmed_example_invented): 5 % in the 10-80 Hz bands
     s_psd = CASES["T2"]["inputs"]["psd_velocity_one_sided"]["value"]
     expected = CASES["T2"]["expected"]["band_rms_butterworth3"]["value"]  # 1 Hz ... 100 Hz
@@ -86,7 +92,8 @@ def test_white_noise_gives_the_root_of_density_times_bandwidth(plugins, tmp_path
 
 
 def test_two_tones_land_in_their_bands(plugins, tmp_path):
-    # T3: 20 Hz and 22 Hz share the 20 Hz band, 50 Hz alone (Butterworth values): 2 %
+    # T3_two_tone_plus_one_band_rms: 20 Hz and 22 Hz share the 20 Hz band, 50 Hz alone
+    # (Butterworth values): 2 %
     tones = CASES["T3"]["inputs"]["tones_frequency_peak"]["value"]
     expected = CASES["T3"]["expected"]["band_rms_butterworth3_all_bands"]["value"]
     fs = 512.0
@@ -101,7 +108,8 @@ def test_two_tones_land_in_their_bands(plugins, tmp_path):
 
 
 def test_acceleration_is_integrated_to_v_equals_a_over_2_pi_f(plugins, tmp_path):
-    # T4 (kinematics of a sine, common_practice_no_source): a_rms at 31.62 Hz gives
+    # T4_acceleration_velocity_displacement_conversions (kinematics of a sine,
+    # common_practice_no_source): a_rms at 31.62 Hz gives
     # v_rms = a_rms/(2π f): 2 %. Header unit g (standard gravity 9.80665 m/s²).
     a_rms = CASES["T4"]["inputs"]["a_rms_tone"]["value"]
     f0 = CASES["T4"]["expected"]["f_m"]["value"]
