@@ -79,6 +79,19 @@ class ResultRow:
 
 
 @dataclass(**_frozen)
+class ResultList:
+    """A result that is a list of records (a spectrum's band levels): results.json writes
+    ``key: [{field: value, ...}, ...]`` with the numbers in SI (``units``: one dimension
+    per field). The package shows such a list in a Table block of the calc's own."""
+
+    key: str
+    description: str
+    fields: tuple[str, ...]
+    units: tuple[str, ...]
+    rows: tuple[tuple[float, ...], ...]
+
+
+@dataclass(**_frozen)
 class ResultsTable:
     rows: tuple[ResultRow, ...]
     title: str = "Results"
@@ -330,6 +343,8 @@ class Section:
     #: the operating envelope it was judged over (None: inputs without ranges or orders)
     envelope: Envelope | None = None
 
+    result_lists: tuple[ResultList, ...] = ()
+
     def result(self, key: str) -> ResultRow | None:
         return next((r for r in self.results if r.key == key), None)
 
@@ -464,9 +479,9 @@ class Document:
 # ---------------------------------------------------------------- JSON
 
 _TYPES = {cls.__name__: cls for cls in (*BLOCK_TYPES, Quantity, InputRow, ResultRow, Series,
-                                        Marker, Band, Panel, VerificationRow, Source, Section,
-                                        RevisionEntry, PackageInfo, Document, Governing, Fill,
-                                        EnvelopeInput, Envelope)}
+                                        ResultList, Marker, Band, Panel, VerificationRow,
+                                        Source, Section, RevisionEntry, PackageInfo, Document,
+                                        Governing, Fill, EnvelopeInput, Envelope)}
 
 
 def to_json(node: Any) -> Any:

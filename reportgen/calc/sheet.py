@@ -13,12 +13,14 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from reportgen import formula as _formula
+from reportgen.calc.criteria import CriteriaLibrary
 from reportgen.calc.spec import DataFile
 from reportgen.model import (
     Block,
     Check,
     Equation,
     Quantity,
+    ResultList,
     ResultRow,
     Status,
 )
@@ -39,6 +41,10 @@ class CalcContext:
     units: str = "SI"
     #: the data files the job names ("file" inputs), by input name; read them, never write
     files: Mapping[str, DataFile] = field(default_factory=dict)
+    #: every criterion the plugins registered (and the firm's own, from its template
+    #: folder); look one up with ``ctx.criteria_library.get(name)``. It pickles, so a
+    #: verification run in a worker process sees the same library.
+    criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary)
 
     def file_hashes(self) -> dict[str, str]:
         """{input name: SHA-256} of the data files: what the files add to a cache key."""
@@ -51,6 +57,7 @@ class CalcOutput:
     results: tuple[ResultRow, ...]
     checks: tuple[Check, ...]
     purpose: str = ""
+    result_lists: tuple[ResultList, ...] = ()
 
 
 class Sheet:
@@ -64,6 +71,7 @@ class Sheet:
         self._blocks: list[Block] = []
         self._results: dict[str, ResultRow] = {}
         self._checks: list[Check] = []
+        self._lists: dict[str, ResultList] = {}
 
     def add(self, *blocks: Block) -> None:
         self._blocks.extend(blocks)
@@ -105,6 +113,14 @@ class Sheet:
                                        key_result=key_result)
         return value
 
+    def result_list(self, key: str, description: str, fields: dict[str, str],
+                    rows: list[tuple[float, ...]] | tuple[tuple[float, ...], ...]) -> None:
+        """Record a result that is a list of records (``fields``: name -> dimension, each
+        row one SI number per field), written to results.json as a list of objects."""
+        self._lists[key] = ResultList(key=key, description=description,
+                                      fields=tuple(fields), units=tuple(fields.values()),
+                                      rows=tuple(tuple(float(v) for v in r) for r in rows))
+
     def check(self, id: str, description: str, *, value: float | None = None,
               limit: float | None = None, dimension: str = "dimensionless",
               comparison: str = "", status: Status | None = None, note: str = "") -> Check:
@@ -127,7 +143,8 @@ class Sheet:
 
     def output(self, purpose: str = "") -> CalcOutput:
         return CalcOutput(blocks=tuple(self._blocks), results=tuple(self._results.values()),
-                          checks=tuple(self._checks), purpose=purpose)
+                          checks=tuple(self._checks), purpose=purpose,
+                          result_lists=tuple(self._lists.values()))
 
 
 #: A value within this relative distance of its limit is on the limit (see on_limit).

@@ -15,7 +15,8 @@ from typing import IO, Any, Literal
 
 __all__ = ["Column", "DataFile", "InputSpec", "VerificationCase"]
 
-Kind = Literal["quantity", "integer", "pair", "points", "choice", "text", "table", "file"]
+Kind = Literal["quantity", "integer", "pair", "points", "choice", "text", "table", "file",
+               "criterion", "texts"]
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -45,13 +46,21 @@ class InputSpec:
     - "quantity" (the default), "integer": one value;
     - "pair": two quantities (a range), "points": a list of [x, y] pairs;
     - "choice": one of ``choices`` (text); "text": free text (``max_length``);
+      "texts": a list of texts (names, e.g. of columns; ``min_rows`` to ``max_rows`` of
+      them, each at most ``max_length``, none twice), the calc gets a tuple of str;
     - "table": an array of tables (``[[calc.inputs.NAME]]``), one per row, each with the
       ``columns`` (at least ``min_rows``, at most ``max_rows`` rows); the calc gets a tuple
       of rows, each a dict of SI values (text for text columns), absent optional columns
       left out;
     - "file": a data file in the job's folder (one of ``formats``, by suffix); the calc
       gets a :class:`DataFile`, read-only; the file is hashed into the cache key and
-      embedded in the package, so ``reportgen verify`` recomputes from it.
+      embedded in the package, so ``reportgen verify`` recomputes from it;
+    - "criterion": the name of a criterion in the criteria library
+      (:mod:`reportgen.calc.criteria`), checked when the job is loaded (an unknown name is
+      refused with the nearest names); the calc gets the name as registered. With
+      ``columns`` the job may instead give its own curve as an array of tables, read like
+      a "table" input (the calc gets the tuple of rows). ``choices``, if given, are the
+      values of the criterion's ``quantity`` attribute the calc can use.
     """
 
     name: str

@@ -30,6 +30,7 @@ from reportgen.model import (
     InputRow,
     InputsTable,
     Quantity,
+    ResultList,
     ResultRow,
     Section,
     Table,
@@ -90,7 +91,7 @@ def calc_context(spec: CalcSpec, units: str) -> CalcContext:
     return CalcContext(calc_id=spec.id, title=spec.title, inputs=dict(spec.inputs),
                        given=spec.given, criteria=dict(spec.criteria),
                        criteria_given=spec.criteria_given, units=units,
-                       files=dict(spec.files))
+                       files=dict(spec.files), criteria_library=spec.criteria_library)
 
 
 def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
@@ -159,7 +160,8 @@ def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
         blocks=blocks + tuple(out.blocks), results=tuple(out.results),
         checks=tuple(out.checks), verification=verification, notes=spec.notes,
         sources=tuple(ct.sources), verification_cases=tuple(c.id for c in ct.verification_cases),
-        envelope=None if c.envelope is None else c.envelope.envelope)
+        envelope=None if c.envelope is None else c.envelope.envelope,
+        result_lists=tuple(out.result_lists))
 
 
 def _envelope_rows(c: Computed, verify: VerifyHook | None) -> tuple[VerificationRow, ...]:
@@ -219,7 +221,8 @@ def _input_tables(specs: tuple[InputSpec, ...], values: Mapping[str, Any]
     its column's display unit."""
     out = []
     for sp in specs:
-        if sp.kind != "table" or sp.name not in values:
+        if sp.name not in values or not (sp.kind == "table" or (
+                sp.kind == "criterion" and not isinstance(values[sp.name], str))):
             continue
         cols = sp.columns
         out.append(Table(
@@ -247,11 +250,12 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
         if named:
             source = named
-        if sp.kind == "table":
+        if sp.kind == "table" or (sp.kind == "criterion" and not isinstance(value, str)):
             continue  # a table of its own (_input_tables)
-        if sp.kind in ("choice", "text", "file"):
+        if sp.kind in ("choice", "text", "file", "criterion", "texts"):
             text = (f"{value.name} ({value.size} bytes, SHA-256 {value.sha256[:12]}…)"
-                    if sp.kind == "file" else str(value))
+                    if sp.kind == "file" else ", ".join(value) if sp.kind == "texts"
+                    else str(value))
             rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
                                  quantity=None, text=text,
                                  source=named or ("job file" if sp.name in given else source)))
@@ -312,7 +316,14 @@ def check_output(out: Any) -> str:
             return f"result {r.key} has unknown dimension {q.dimension!r}"
         if not isinstance(q.value, float) or not math.isfinite(q.value):
             return f"result {r.key} is not a finite number ({q.value!r})"
-    keys = [r.key for r in out.results]
+    for rl in out.result_lists:
+        if not isinstance(rl, ResultList) or len(rl.fields) != len(rl.units) or any(
+                len(r) != len(rl.fields) or not all(isinstance(v, float) and math.isfinite(v)
+                                                    for v in r) for r in rl.rows):
+            return f"malformed result list {getattr(rl, 'key', rl)!r}"
+        if any(u not in DIMENSIONS for u in rl.units):
+            return f"result list {rl.key} has an unknown dimension"
+    keys = [r.key for r in out.results] + [rl.key for rl in out.result_lists]
     if len(keys) != len(set(keys)):
         return "duplicate result keys"
     for c in out.checks:

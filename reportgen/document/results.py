@@ -68,7 +68,9 @@ def _results(doc: Document) -> dict[str, Any]:
             {
                 "id": s.calc_id, "plugin": s.plugin, "plugin_version": s.plugin_version,
                 "plugin_package": s.plugin_package, "title": s.title,
-                "results": {r.key: _q(r.quantity) for r in s.results},
+                "results": {**{r.key: _q(r.quantity) for r in s.results},
+                            **{rl.key: [dict(zip(rl.fields, row, strict=True))
+                                        for row in rl.rows] for rl in s.result_lists}},
                 "checks": [
                     {"id": c.id, "description": c.description, "status": c.status,
                      "value": _q(c.value), "limit": _q(c.limit), "comparison": c.comparison,

@@ -6,10 +6,12 @@ inputs from its InputSpecs, and each dimension's unit spellings from pint's regi
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 import re
 from typing import Any
 
+from reportgen.calc.criteria import CriteriaLibrary, load_criteria, normalise
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, InputSpec
 from reportgen.job.load import (
@@ -53,6 +55,8 @@ KNOWN_DIFFERENCES = {
                         " number), and a prefixed spelling pint reads as another unit"
                         " ('min' is a minute, not a milli-inch)",
     "whole-float": "a whole number written as a float (3.0) where an integer is expected",
+    "criteria-library": "a criterion named from a firm's own curves (criteria/ in its"
+                        " template folder): the schema lists the installed library only",
 }
 
 
@@ -251,6 +255,33 @@ def _column_schema(col: Column) -> dict[str, Any]:
     return {**s, "description": col.description + unit}
 
 
+#: the criteria library of the schema being written (job_schema sets it for its call)
+_LIBRARY: list[CriteriaLibrary] = []
+
+
+def _criterion_name(spec: InputSpec) -> dict[str, Any]:
+    """A criterion's name: any spelling (case, spaces, '-', '_') of a name or alias of the
+    installed library whose quantity the calc takes. A firm's own curves (criteria/ in its
+    template folder) are not in the schema: `reportgen check` knows them."""
+    out: dict[str, Any] = {"type": "string", "minLength": 1, "description": spec.description
+                           + " (the name of a criterion; `reportgen criteria` lists them)"}
+    if not _LIBRARY:
+        return out
+    names = []
+    for entry in _LIBRARY[-1]:
+        c = entry.criterion
+        if spec.choices and getattr(c, "quantity", None) not in spec.choices:
+            continue
+        names += [entry.name, *getattr(c, "aliases", ())]
+    sep = r"[\s_-]*"
+    alternatives = sorted({sep.join(f"[{ch}{ch.upper()}]" if ch.upper() != ch else
+                                    re.escape(ch) for ch in normalise(n)) for n in names})
+    if alternatives:
+        out["pattern"] = f"^{sep}(?:{'|'.join(alternatives)}){sep}$"
+        out["examples"] = sorted(names)[:3]
+    return out
+
+
 def _value_schema(spec: InputSpec) -> dict[str, Any]:
     dim = DIMENSIONS[spec.dimension]
     if spec.kind == "choice":
@@ -261,17 +292,26 @@ def _value_schema(spec: InputSpec) -> dict[str, Any]:
     if spec.kind == "text":
         return {"type": "string", "maxLength": spec.max_length,
                 "description": spec.description}
+    if spec.kind == "texts":
+        return {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
+                "uniqueItems": True, "description": spec.description,
+                "items": {"type": "string", "minLength": 1, "maxLength": spec.max_length}}
     if spec.kind == "file":
         suffixes = "|".join(re.escape(f) for f in spec.formats)
         return {"type": "string", "description": spec.description + " (a file in the job's"
                 " folder, relative path)", **({"pattern": rf"(?i)({suffixes})$"}
                                               if suffixes else {})}
-    if spec.kind == "table":
-        return {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
-                "description": spec.description + " (an array of tables, one per row)",
-                "items": {"type": "object", "additionalProperties": False,
-                          "properties": {c.name: _column_schema(c) for c in spec.columns},
-                          "required": [c.name for c in spec.columns if c.required]}}
+    if spec.kind == "table" or (spec.kind == "criterion" and spec.columns):
+        table = {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
+                 "description": spec.description + " (an array of tables, one per row)",
+                 "items": {"type": "object", "additionalProperties": False,
+                           "properties": {c.name: _column_schema(c) for c in spec.columns},
+                           "required": [c.name for c in spec.columns if c.required]}}
+        if spec.kind == "table":
+            return table
+        return {"anyOf": [_criterion_name(spec), table], "description": spec.description}
+    if spec.kind == "criterion":
+        return _criterion_name(spec)
     if spec.kind == "integer":
         s: dict[str, Any] = {"type": "integer", **_number_range(spec)}
     elif spec.kind == "pair":
@@ -297,6 +337,9 @@ def _wrapped(spec: InputSpec, inputs: bool) -> dict[str, Any]:
     plain = _value_schema(spec)
     if spec.kind == "table":
         return plain
+    if spec.kind == "criterion" and spec.columns:  # a name (plain or wrapped), or a table
+        named = _wrapped(dataclasses.replace(spec, columns=()), inputs)
+        return {"anyOf": [named, plain["anyOf"][1]], "description": spec.description}
     values = [plain]
     spread = spec.kind == "quantity" and inputs and spec.rangeable
     if spread:
@@ -400,7 +443,11 @@ def _calc_variant(name: str, ct: Any) -> dict[str, Any]:
 def job_schema(plugins: PluginSet) -> dict[str, Any]:
     """The job format as a draft 2020-12 JSON Schema: one variant per calc type, chosen
     by ``plugin`` (a discriminated ``oneOf``, which editors' language servers follow)."""
-    variants = [_calc_variant(n, plugins.calcs[n].calc_type) for n in plugins.names()]
+    _LIBRARY.append(load_criteria(plugins))
+    try:
+        variants = [_calc_variant(n, plugins.calcs[n].calc_type) for n in plugins.names()]
+    finally:
+        _LIBRARY.pop()
     package_props = {k: _package_field(k, req) for k, req in PACKAGE_KEYS.items()}
     return {
         "$schema": "https://json-schema.org/draft/2020-12/schema",

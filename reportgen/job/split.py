@@ -38,6 +38,7 @@ def row_source(job: Job, tag: str) -> bytes:
     return (head + tomli_w.dumps({"package": package, "calc": [calc]})).encode("utf-8")
 
 
-def row_job(job: Job, tag: str, plugins: Any) -> Job:
-    """The row's job, loaded (and so checked) like any job file in the job's folder."""
-    return load_job(job.path, plugins, source=row_source(job, tag))
+def row_job(job: Job, tag: str, plugins: Any, **load: Any) -> Job:
+    """The row's job, loaded (and so checked) like any job file in the job's folder
+    (``load``: what :func:`load_job` was given, the template folder)."""
+    return load_job(job.path, plugins, source=row_source(job, tag), **load)

@@ -117,7 +117,21 @@ def compare(old: Side, new: Side, rtol: float = MOVE_RTOL) -> Changes:
     return ch
 
 
+def _flat(res: dict) -> dict:
+    """A list result (band levels) compared field by field: key[i].field."""
+    out: dict = {}
+    for key, value in res.items():
+        if isinstance(value, list):
+            for i, row in enumerate(value, start=1):
+                for field_name, v in (row.items() if isinstance(row, dict) else ()):
+                    out[f"{key}[{i}].{field_name}"] = {"value": v, "unit": ""}
+        else:
+            out[key] = value
+    return out
+
+
 def _compare_results(ch: Changes, cid: str, o_res: dict, n_res: dict, rtol: float) -> None:
+    o_res, n_res = _flat(o_res), _flat(n_res)
     for key in dict.fromkeys([*o_res, *n_res]):
         a, b = o_res.get(key), n_res.get(key)
         unit = (b or a or {}).get("unit", "")
