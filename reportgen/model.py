@@ -300,6 +300,17 @@ class PackageInfo:
 
 
 @dataclass(**_frozen)
+class Deviation:
+    """A failing check the job accepts, with who accepted it, when and why."""
+
+    calc: str
+    check: str
+    justification: str
+    accepted_by: str = ""
+    date: str = ""
+
+
+@dataclass(**_frozen)
 class Document:
     info: PackageInfo
     revision_history: tuple[RevisionEntry, ...]
@@ -308,6 +319,7 @@ class Document:
     changes: tuple[str, ...] = ()
     model_version: int = MODEL_VERSION
     extra: tuple[tuple[str, str], ...] = field(default=())
+    deviations: tuple[Deviation, ...] = ()
 
     @property
     def checks(self) -> tuple[tuple[Section, Check], ...]:
@@ -320,6 +332,23 @@ class Document:
     @property
     def failed(self) -> tuple[tuple[Section, Check], ...]:
         return tuple((s, c) for s, c in self.checks if c.status == "fail")
+
+    def deviation(self, calc_id: str, check_id: str) -> Deviation | None:
+        """The accepted deviation for a check, if the job records one."""
+        for d in self.deviations:
+            if d.calc == calc_id and d.check == check_id:
+                return d
+        return None
+
+    @property
+    def unaccepted(self) -> tuple[tuple[Section, Check], ...]:
+        """Failing checks without an accepted deviation."""
+        return tuple((s, c) for s, c in self.failed if self.deviation(s.calc_id, c.id) is None)
+
+    @property
+    def fit_to_issue(self) -> bool:
+        """Checked, approved, and every failing check accepted by a recorded deviation."""
+        return self.review_state == "approved" and not self.unaccepted
 
     @property
     def status(self) -> Status:
@@ -338,7 +367,8 @@ class Document:
 
 _TYPES = {cls.__name__: cls for cls in (*BLOCK_TYPES, Quantity, InputRow, ResultRow, Series,
                                         Marker, Band, Panel, VerificationRow, Source, Section,
-                                        RevisionEntry, PackageInfo, Document)}
+                                        RevisionEntry, PackageInfo, Deviation,
+                                        Document)}
 
 
 def to_json(node: Any) -> Any:

@@ -16,7 +16,7 @@ from reportgen.calc.plugin_set import PluginSet, RegisteredCalc
 from reportgen.calc.sheet import CalcContext, CalcOutput
 from reportgen.calc.spec import InputSpec
 from reportgen.document.transforms import apply_transforms
-from reportgen.errors import PluginError, ReportgenError, VerificationError
+from reportgen.errors import JobError, PluginError, Problem, ReportgenError, VerificationError
 from reportgen.job.load import CalcSpec, Job
 from reportgen.model import (
     BLOCK_TYPES,
@@ -74,9 +74,35 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
             seen.add(reg.name)
             software.append((f"calc type {reg.name}", reg.package,
                              reg.calc_type.version))
+    check_deviations(job, sections)
     doc = Document(info=job.info, revision_history=job.revision_history,
-                   sections=tuple(sections), software=tuple(software))
+                   sections=tuple(sections), software=tuple(software),
+                   deviations=job.deviations)
     return apply_transforms(doc)
+
+
+def check_deviations(job: Job, sections: list[Section]) -> None:
+    """Refuse a deviation whose check the named calc does not report, or reports as
+    information (only a pass/fail check can be accepted)."""
+    problems = []
+    by_id = {s.calc_id: s for s in sections}
+    for i, d in enumerate(job.deviations):
+        section = by_id.get(d.calc)
+        if section is None:
+            continue  # the loader has refused it
+        ids = {c.id: c for c in section.checks}
+        where = f"package.deviations[{i}].check"
+        if d.check not in ids:
+            known = ", ".join(c.id for c in section.checks if c.status != "info")
+            problems.append(Problem(str(job.path), f"calc '{d.calc}' has no check"
+                                    f" '{d.check}'; its checks are: {known or 'none'}",
+                                    field=where))
+        elif ids[d.check].status == "info":
+            problems.append(Problem(str(job.path), f"'{d.check}' of calc '{d.calc}' is"
+                                    " information, not a pass/fail check: there is nothing"
+                                    " to accept", field=where))
+    if problems:
+        raise JobError(problems)
 
 
 def calc_context(spec: CalcSpec, units: str) -> CalcContext:

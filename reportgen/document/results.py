@@ -36,6 +36,12 @@ def results_data(doc: Document) -> dict[str, Any]:
             "status": doc.status,
             "checks_total": len(checks),
             "checks_failed": len(doc.failed),
+            "checks_failed_unaccepted": len(doc.unaccepted),
+            "fit_to_issue": doc.fit_to_issue,
+            "deviations": [
+                {"calc": d.calc, "check": d.check, "justification": d.justification,
+                 "accepted_by": d.accepted_by, "date": d.date or None}
+                for d in doc.deviations],
         },
         "calcs": [
             {
@@ -44,7 +50,8 @@ def results_data(doc: Document) -> dict[str, Any]:
                 "results": {r.key: _q(r.quantity) for r in s.results},
                 "checks": [
                     {"id": c.id, "description": c.description, "status": c.status,
-                     "value": _q(c.value), "limit": _q(c.limit), "comparison": c.comparison}
+                     "value": _q(c.value), "limit": _q(c.limit), "comparison": c.comparison,
+                     "accepted_deviation": doc.deviation(s.calc_id, c.id) is not None}
                     for c in s.checks
                 ],
                 "verification": None if s.verification is None else [

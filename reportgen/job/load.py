@@ -22,7 +22,7 @@ from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
-from reportgen.model import PackageInfo, RevisionEntry
+from reportgen.model import Deviation, PackageInfo, RevisionEntry
 from reportgen.units import DIMENSIONS, Spread, UnitProblem, parse_quantity, parse_spread
 
 MAX_JOB_BYTES = 1_000_000
@@ -56,6 +56,7 @@ PACKAGE_KEYS = {
     "prepared_by": False, "prepared_date": False, "checked_by": False, "checked_date": False,
     "approved_by": False, "approved_date": False, "revision_history": False,
     "template_dir": False, "firm": False, "previous_package": False, "attachments": False,
+    "deviations": False,
 }
 #: What each [package] key holds ("name": text that also names the output files).
 PACKAGE_KINDS = {
@@ -64,10 +65,13 @@ PACKAGE_KINDS = {
     "prepared_by": "text", "prepared_date": "date", "checked_by": "text",
     "checked_date": "date", "approved_by": "text", "approved_date": "date",
     "revision_history": "history", "template_dir": "folder", "firm": "text",
-    "previous_package": "path", "attachments": "files",
+    "previous_package": "path", "attachments": "files", "deviations": "deviations",
 }
 #: The keys of one [[package.revision_history]] entry, and whether each is required.
 HISTORY_KEYS = {"revision": True, "date": False, "description": True, "by": False}
+#: The keys of one [[package.deviations]] entry (an accepted failing check).
+DEVIATION_KEYS = {"calc": True, "check": True, "justification": True, "accepted_by": True,
+                  "date": False}
 UNIT_SYSTEMS = ("SI", "US")
 #: the keys of an input written as a table: { value = "...", source = "...", tolerance = "..." }
 WRAPPER_KEYS = ("value", "source", "tolerance")
@@ -123,6 +127,7 @@ class Job:
     previous_package: Path | None = None
     raw: Mapping[str, Any] = field(default_factory=dict)
     attachments: tuple[JobAttachment, ...] = ()
+    deviations: tuple[Deviation, ...] = ()
 
     @property
     def stem(self) -> str:
@@ -279,12 +284,13 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         if spec is not None:
             calcs.append(spec)
     attachments = v.with_data_files(attachments, calcs)
+    deviations = v.deviations(pkg, {c.id for c in calcs})
     if problems:
         raise JobError(problems)
     assert info is not None
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
                calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
-               raw=raw, attachments=attachments)
+               raw=raw, attachments=attachments, deviations=deviations)
 
 
 def job_files(targets: list[Path]) -> list[Path]:
@@ -543,6 +549,41 @@ class _Validator:
             units=units, prepared_by=t["prepared_by"], checked_by=t["checked_by"],
             approved_by=t["approved_by"], firm=t["firm"], **dates)
         return info, tuple(history), template_dir, previous
+
+    def deviations(self, pkg: Mapping[str, Any], calc_ids: set[str]) -> tuple[Deviation, ...]:
+        """[[package.deviations]]: each names a calc of this job and says why its failing
+        check is accepted (the check id is checked once the calc has run)."""
+        raw = pkg.get("deviations", [])
+        if not isinstance(raw, list):
+            self.add("expected an array of tables [[package.deviations]]",
+                     field="package.deviations")
+            return ()
+        out: list[Deviation] = []
+        seen: set[tuple[str, str]] = set()
+        for i, d in enumerate(raw):
+            where = f"package.deviations[{i}]."
+            if not isinstance(d, dict):
+                self.add("expected a table with calc, check, justification, accepted_by"
+                         " and date", field=where.rstrip("."))
+                continue
+            for key in d:
+                if key not in DEVIATION_KEYS:
+                    self.add(f"unknown field '{key}'{_nearest(key, list(DEVIATION_KEYS))}",
+                             field=where + key)
+            t = {k: self._text(d, k, where, req) for k, req in DEVIATION_KEYS.items()
+                 if k != "date"}
+            if t["calc"] and t["calc"] not in calc_ids:
+                self.add(f"no calc with id '{t['calc']}' in this job"
+                         f"{_nearest(t['calc'], sorted(calc_ids))}", field=where + "calc")
+            if (t["calc"], t["check"]) in seen:
+                self.add(f"a second deviation for {t['calc']}/{t['check']}",
+                         field=where + "check")
+            seen.add((t["calc"], t["check"]))
+            out.append(Deviation(calc=t["calc"], check=t["check"],
+                                 justification=t["justification"],
+                                 accepted_by=t["accepted_by"],
+                                 date=self._date(d, "date", where)))
+        return tuple(out)
 
     def attachments(self, pkg: Mapping[str, Any], path: Path) -> tuple[JobAttachment, ...]:
         """Files listed in ``[package] attachments``: regular files inside the job folder."""

@@ -15,6 +15,7 @@ from reportgen.calc.spec import Column, InputSpec
 from reportgen.job.load import (
     CALC_KEYS,
     DATE_PATTERN,
+    DEVIATION_KEYS,
     HISTORY_KEYS,
     ID_PATTERN,
     MAX_ATTACHMENTS,
@@ -357,6 +358,13 @@ def _package_field(key: str, required: bool) -> dict[str, Any]:
             "required": [k for k, req in HISTORY_KEYS.items() if req],
             "properties": {k: (_date() if k == "date" else _text(req))
                            for k, req in HISTORY_KEYS.items()}}}
+    if kind == "deviations":
+        return {"type": "array", "description": "failing checks accepted, each with its"
+                " justification", "items": {
+                    "type": "object", "additionalProperties": False,
+                    "required": [k for k, req in DEVIATION_KEYS.items() if req],
+                    "properties": {k: (_date() if k == "date" else _text(req))
+                                   for k, req in DEVIATION_KEYS.items()}}}
     if kind == "files":
         return {"type": "array", "maxItems": MAX_ATTACHMENTS, "uniqueItems": True,
                 "items": {"type": "string", "description": "a file inside the job's folder,"

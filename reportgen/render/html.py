@@ -168,9 +168,10 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
     try:
         template = env.get_template("package.html")
+        mark = issue_mark(doc)
         html = template.render(doc=doc, info=doc.info, logo=logo,
-                               watermark=watermark_uri(doc.review_state),
-                               watermark_text=WATERMARKS.get(doc.review_state, ""))
+                               watermark=watermark_uri(mark),
+                               watermark_text=WATERMARKS.get(mark, ""))
     except (jinja2.TemplateError, ThemeError) as exc:
         raise template_failure(exc, template_dir, builtin_templates()) from exc
     css = getattr(assets, "css", "")  # the equations' math font (render.assets.Assets)
@@ -181,7 +182,16 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
     return html
 
 
-WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED"}
+WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED",
+              "unaccepted": "NOT FIT TO ISSUE"}
+
+
+def issue_mark(doc: Document) -> str:
+    """The mark every page carries: the review state, or, for an approved package with a
+    failing check that no deviation accepts, "unaccepted"; none when fit to issue."""
+    if doc.review_state == "approved":
+        return "unaccepted" if doc.unaccepted else ""
+    return doc.review_state
 
 
 def watermark_uri(review_state: str) -> str:
