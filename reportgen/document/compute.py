@@ -223,8 +223,7 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
         if isinstance(written, dict):  # { value = ..., source = ..., tolerance = ... }
             written = written.get("value")
         named = sources.get(f"{table}.{sp.name}")
-        source = (f"job file: {written}" if isinstance(written, (str, int, float))
-                  and not isinstance(written, bool) else "job file") if sp.name in given else (
+        source = "job file" if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
         if named:
             source = named
@@ -236,6 +235,14 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
             rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
                                  quantity=None, text=text,
                                  source=named or ("job file" if sp.name in given else source)))
+            continue
+        if sp.kind == "points" and isinstance(written, list):
+            # one row for all the points, as the job writes them (x, y); a calc type that
+            # tabulates them by position shows them again with its results
+            text = "; ".join("(" + ", ".join(str(c) for c in pt) + ")" if isinstance(
+                pt, list) else str(pt) for pt in written)
+            rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
+                                 quantity=None, text=text, source=source))
             continue
         if sp.kind in ("pair", "points"):
             flat = [v for v in _flatten(value)]

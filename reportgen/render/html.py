@@ -166,6 +166,9 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
     from reportgen.render.theme import template_failure
 
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
+    refs = references(doc)
+    env.globals.update(references=refs, ref_no=lambda text: refs.index(text) + 1
+                       if text in refs else 0, is_document=is_document)
     try:
         template = env.get_template("package.html")
         mark = issue_mark(doc)
@@ -180,6 +183,27 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
         style = f"<style>{css}</style>\n"
         html = html[:at] + style + html[at:] if at >= 0 else style + html
     return html
+
+
+def is_document(source: str) -> bool:
+    """Whether an input's source names a document (not the job file or a default)."""
+    return bool(source) and not source.startswith(("job file", "default", "derived"))
+
+
+def references(doc: Document) -> list[str]:
+    """Every document the package cites, once, in order of first citation: each calc
+    type's published sources, then the documents the inputs name."""
+    out: list[str] = []
+    for s in doc.sections:
+        for src in s.sources:
+            if src.citation not in out:
+                out.append(src.citation)
+    for s in doc.sections:
+        for b in s.blocks:
+            for row in getattr(b, "rows", ()) if type(b).__name__ == "InputsTable" else ():
+                if is_document(row.source) and row.source not in out:
+                    out.append(row.source)
+    return out
 
 
 WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED",
