@@ -18,9 +18,9 @@ FIGURE_WIDTH_IN = 6.3
 
 
 def figure_inches(fig: Figure) -> tuple[float, float]:
-    """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.7 in more
+    """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.4 in more
     for each further panel. Known before drawing, so the layout can start without it."""
-    return FIGURE_WIDTH_IN, 2.5 + 1.7 * (len(fig.panels) - 1)
+    return FIGURE_WIDTH_IN, 2.5 + 1.4 * (len(fig.panels) - 1)
 
 
 def figure_points(fig: Figure) -> tuple[float, float]:
