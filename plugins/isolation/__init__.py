@@ -195,8 +195,9 @@ class Isolation(CalcType):
                                              tg.r_req),
               figures.selection_chart(iso.f, p["damping_ratio"], iso.delta_st, iso.eta,
                                       tg.delta_req, crit["min_efficiency"], units),
-              Paragraph(title="Typical damping of isolators", text=text.TYPICAL_DAMPING),
               *(Caution(text=t) for t in text.CAUTIONS))
+        if "damping_ratio" not in ctx.given:  # guidance where the damping is assumed
+            s.add(Paragraph(title="Typical damping of isolators", text=text.TYPICAL_DAMPING))
         return s.output(purpose=self.purpose)
 
     def verify(self, ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]:

@@ -129,8 +129,6 @@ CAUTIONS = (
     "Mount selection must follow the isolator maker's rated data (rated load, rated"
     " deflection, spring rate, lateral stability and damping) and the local codes;"
     " this calculation states what the mounts must achieve, not which product to buy.",
-    "Start-up and shut-down pass through resonance: confirm that the mounts' damping"
-    " or restraints limit the motion there, especially where the run-down is slow.",
 )
 
 

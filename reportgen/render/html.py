@@ -167,8 +167,10 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
 
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
     refs = references(doc)
-    env.globals.update(references=refs, ref_no=lambda text: refs.index(text) + 1
-                       if text in refs else 0, is_document=is_document)
+    numbers = reference_numbers(doc, refs)
+    env.globals.update(references=refs, ref_no=lambda text: numbers.get(text, 0),
+                       is_document=is_document)
+    env.filters["ref_no"] = lambda text: numbers.get(text, 0)
     try:
         template = env.get_template("package.html")
         mark = issue_mark(doc)
@@ -190,20 +192,44 @@ def is_document(source: str) -> bool:
     return bool(source) and not source.startswith(("job file", "default", "derived"))
 
 
+def _book(citation: str) -> tuple[str, str]:
+    """A citation split into the work and the part cited (after the first ': ')."""
+    work, sep, part = citation.partition(": ")
+    return (work, part) if sep else (citation, "")
+
+
 def references(doc: Document) -> list[str]:
     """Every document the package cites, once, in order of first citation: each calc
-    type's published sources, then the documents the inputs name."""
-    out: list[str] = []
+    type's published sources (one entry per work, its cited parts joined), then the
+    documents the inputs name."""
+    parts: dict[str, list[str]] = {}
     for s in doc.sections:
         for src in s.sources:
-            if src.citation not in out:
-                out.append(src.citation)
+            work, part = _book(src.citation)
+            cited = parts.setdefault(work, [])
+            if part and part not in cited:
+                cited.append(part.rstrip("."))
+    out = [f"{w}: {'; '.join(p)}." if p else w for w, p in parts.items()]
     for s in doc.sections:
         for b in s.blocks:
             for row in getattr(b, "rows", ()) if type(b).__name__ == "InputsTable" else ():
                 if is_document(row.source) and row.source not in out:
                     out.append(row.source)
     return out
+
+
+def reference_numbers(doc: Document, refs: list[str]) -> dict[str, int]:
+    """The number each citation (a plugin source or an input's document) is cited by."""
+    works = [_book(r)[0] if i < len(refs) else r for i, r in enumerate(refs)]
+    numbers: dict[str, int] = {}
+    for s in doc.sections:
+        for src in s.sources:
+            work = _book(src.citation)[0]
+            if work in works:
+                numbers[src.citation] = works.index(work) + 1
+    for i, r in enumerate(refs, start=1):
+        numbers.setdefault(r, i)
+    return numbers
 
 
 WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED",
