@@ -47,7 +47,7 @@ def _pages(pdf: Path) -> list[str]:
 
 def test_no_unit_cell_wraps(built):
     # a unit broken at its slash leaves a line ending in "/" (mm/ s, kN/ m)
-    for job, pdf in built.items():
+    for pdf in built.values():
         for i, page in enumerate(_pages(pdf), start=1):
             for line in page.splitlines():
                 assert not re.search(r"\b(mm|kN|MN|m|N|lbf|in|µm|kg|rad)/\s*$", line), (
@@ -55,7 +55,7 @@ def test_no_unit_cell_wraps(built):
 
 
 def test_no_page_body_is_a_lone_row_or_heading(built):
-    for job, pdf in built.items():
+    for pdf in built.values():
         for i, page in enumerate(_pages(pdf), start=1):
             lines = [ln for ln in page.splitlines() if ln.strip()]
             body = [ln for ln in lines[1:] if not re.search(r"Page \d+ of \d+", ln)

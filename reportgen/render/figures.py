@@ -6,6 +6,7 @@ Deterministic output: fixed hash salt, no date metadata, text kept as text.
 from __future__ import annotations
 
 import io
+from typing import Any
 
 from reportgen.model import Figure
 
