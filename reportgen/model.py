@@ -320,6 +320,7 @@ class Document:
     model_version: int = MODEL_VERSION
     extra: tuple[tuple[str, str], ...] = field(default=())
     deviations: tuple[Deviation, ...] = ()
+    changes_table: Table | None = None  # the changes since the previous revision, tabulated
 
     @property
     def checks(self) -> tuple[tuple[Section, Check], ...]:

@@ -112,6 +112,16 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
         label = quantity_parts(Quantity(value=1.0, dimension=dimension), units)[1]
         return f" ({label})" if label else ""
 
+    def header_html(text: str) -> Markup:
+        """A column header whose trailing unit ("[lbf/in]", "(mm/s)") never wraps."""
+        import re
+
+        m = re.search(r"\s*([\[(][^\[\]()]*[\])])$", text)
+        if not m:
+            return escape(text)
+        return Markup(f"{escape(text[:m.start()])} <span class=\"nowrap\">"
+                      f"{escape(m.group(1))}</span>")
+
     def cell_is_number(cell: Any) -> bool:
         return isinstance(cell, (int, float, Quantity)) and not isinstance(cell, bool)
 
@@ -141,6 +151,7 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
 
     env.globals.update(
         column_unit=column_unit, matrix_unit=matrix_unit, cell_is_number=cell_is_number,
+        header_html=header_html,
         cell_text=cell_text, matrix_cell=matrix_cell,
         asset=asset, block_kind=lambda b: type(b).__name__, sym=symbol_html, qv=qv, qu=qu,
         q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=units,
