@@ -13,6 +13,7 @@ from reportgen_plugins.mechanics import (
     amplification_formula,
     critical_damping_formula,
     phase_lag_formula,
+    quantity_text,
 )
 from reportgen_plugins.mechanics.passage import MAX_CYCLES, run_up_cycles, run_up_peak
 
@@ -229,7 +230,7 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
                    f" ({format_number(f_end / t_ramp, 3)} Hz/s, from the stated run-up time),"
                    f" integrated in time; the largest displacement occurs at"
                    f" {format_number(run.peak_frequency, 3)} Hz, against"
-                   f" {format_number(x_res * 1e6, 3)} µm for a dwell at resonance.")
+                   f" {quantity_text(x_res, 'length', units)} for a dwell at resonance.")
         else:
             how = ("Run-up too long to integrate within the cost bound: " + how)
     if "max_passage_displacement" in crit:

@@ -45,7 +45,8 @@ KNOWN_DIFFERENCES = {
                    " 1e308, or a positive value that rounds to zero)",
     "cross-field": "a calc type's own cross-field rules (exactly one excitation, damping"
                    " as a ratio or a coefficient but not both, a range's two ends in order,"
-                   " the revision history holding the current revision)",
+                   " the revision history holding the current revision, a deviation"
+                   " naming a calc of the job)",
     "files": "files and folders the job names (attachments, template_dir,"
              " previous_package) must exist beside the job file",
     "unit-expressions": "unit expressions beyond the forms listed per dimension (e.g."
