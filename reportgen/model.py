@@ -411,6 +411,17 @@ class ScheduleItem:
 
 
 @dataclass(**_frozen)
+class Deviation:
+    """A failing check the job accepts, with who accepted it, when and why."""
+
+    calc: str
+    check: str
+    justification: str
+    accepted_by: str = ""
+    date: str = ""
+
+
+@dataclass(**_frozen)
 class Document:
     info: PackageInfo
     revision_history: tuple[RevisionEntry, ...]
@@ -426,6 +437,9 @@ class Document:
     schedule_results: tuple[str, ...] = ()
     #: against the previous revision: (tag, what happened, what moved) per changed tag
     schedule_changes: tuple[tuple[str, str, str], ...] = ()
+
+    deviations: tuple[Deviation, ...] = ()
+    changes_table: Table | None = None  # the changes since the previous revision, tabulated
 
     @property
     def schedule_ids(self) -> frozenset[str]:
@@ -463,6 +477,23 @@ class Document:
     def failed(self) -> tuple[tuple[Section, Check], ...]:
         return tuple((s, c) for s, c in self.checks if c.status == "fail")
 
+    def deviation(self, calc_id: str, check_id: str) -> Deviation | None:
+        """The accepted deviation for a check, if the job records one."""
+        for d in self.deviations:
+            if d.calc == calc_id and d.check == check_id:
+                return d
+        return None
+
+    @property
+    def unaccepted(self) -> tuple[tuple[Section, Check], ...]:
+        """Failing checks without an accepted deviation."""
+        return tuple((s, c) for s, c in self.failed if self.deviation(s.calc_id, c.id) is None)
+
+    @property
+    def fit_to_issue(self) -> bool:
+        """Checked, approved, and every failing check accepted by a recorded deviation."""
+        return self.review_state == "approved" and not self.unaccepted
+
     @property
     def status(self) -> Status:
         return "fail" if self.failed else "pass"
@@ -480,8 +511,8 @@ class Document:
 
 _TYPES = {cls.__name__: cls for cls in (*BLOCK_TYPES, Quantity, InputRow, ResultRow, Series,
                                         ResultList, Marker, Band, Panel, VerificationRow,
-                                        Source, Section, RevisionEntry, PackageInfo, Document,
-                                        Governing, Fill, EnvelopeInput, Envelope)}
+                                        Source, Section, RevisionEntry, PackageInfo, Deviation,
+                                        Document, Governing, Fill, EnvelopeInput, Envelope)}
 
 
 def to_json(node: Any) -> Any:

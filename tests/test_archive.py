@@ -238,10 +238,12 @@ def test_changes_section_names_the_previous_revision(work, builds):
     text = " ".join((p.extract_text() or "") for p in pages)
     text = " ".join(text.split())
     assert "Changes since revision A (2026-11-12)" in text
-    assert 'inputs.mass changed from "1100 kg" to "1200 kg"' in text
+    # a table in plain words and display units (issue 15): the input by its description
+    assert "Vibrating mass 1100 kg 1200 kg changed" in text
     # f_n = (1/2π)·√(k/m) (Thomson & Dahleh, Ch. 2): the mass went 1100 → 1200 kg
     rel = math.sqrt(1100 / 1200) - 1
-    assert f"({rel * 100:+.3g} %)" in text
+    assert f"down {abs(rel) * 100:.3g} %" in text
+    assert "inputs.mass" not in text and "**" not in text
 
 
 # ---------------------------------------------------------------- extract

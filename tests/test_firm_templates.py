@@ -50,7 +50,7 @@ def test_firm_cover_replaces_the_built_in_one(branded):
     assert "Quiet structures, steady machines." in cover  # only in the firm's cover.html
     assert "VIBRATION AND DYNAMICS GROUP" in cover.upper()
     # what every cover must keep
-    for text in ("All 2 design checks pass", "Checked and approved for issue",
+    for text in ("All 2 design checks pass", "FIT TO ISSUE. Checked and approved",
                  "Engineer's seal or stamp", "Prepared", "T. Marsh", "Checked",
                  "L. Okafor-Reid", "Approved", "S. Brannock", "QEP-2417-V-106",
                  "do not replace local codes"):

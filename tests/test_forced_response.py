@@ -17,7 +17,7 @@ from scipy import signal
 from scipy.integrate import solve_ivp
 from scipy.optimize import minimize_scalar
 
-from reportgen import Caution, Equation, Figure, InputsTable, JobError, Note, Paragraph
+from reportgen import Caution, Check, Equation, Figure, InputsTable, JobError, Note, Paragraph
 from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.document.compute import compute_document
@@ -433,7 +433,9 @@ def test_regime_statement_follows_the_frequency_ratio():
         doc = _doc({**base, "frequency": f})
         regime = next(p for p in _blocks(doc, Paragraph) if p.title == "Regime")
         texts[f] = regime.text
-        assert "common practice, no source" in regime.text
+        # the regime limits are common practice (no source): the package says "common
+        # practice" and never prints "no source"
+        assert "common practice" in regime.text and "no source" not in regime.text
     assert "stiffness-controlled" in texts["3 Hz"]
     assert "damping-controlled" in texts["10 Hz"]
     assert "mass-controlled" in texts["20 Hz"]
@@ -450,7 +452,7 @@ def test_velocity_peak_and_rms_and_the_criterion_uses_the_peak():
     assert r["velocity_rms"] < 0.150 < r["velocity_amplitude"]
     assert _checks(doc)["max-velocity"] == "fail"
     text = " ".join(p.text for p in _blocks(doc, Paragraph))
-    assert "peak" in text and "RMS" in text and "compared with the peak" in text
+    assert "rms" in text and "A peak criterion is compared with the peak value" in text
 
 
 def test_resonance_band_check_and_figures_mark_operating_point_and_band():
@@ -476,7 +478,7 @@ def test_resonance_band_check_and_figures_mark_operating_point_and_band():
     assert _checks(wide)["resonance-margin"] == "fail"
 
 
-def test_unbalance_plots_against_speed_with_a_run_up_and_start_up_caution():
+def test_unbalance_plots_against_speed_with_a_run_up_and_the_passage_row():
     doc = _doc({"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
                 "unbalance": "0.0075 kg*m", "speed": "980 rpm",
                 "speed_range": ["0 rpm", "1100 rpm"]}, {"max_velocity": "2.5 mm/s"})
@@ -487,8 +489,9 @@ def test_unbalance_plots_against_speed_with_a_run_up_and_start_up_caution():
     assert figs["run-up"].panels[1].hlines[0][0] == pytest.approx(2.5)
     op = [mk for mk in figs["frequency-response"].panels[0].markers if mk.y is not None]
     assert op[0].x == pytest.approx(980.0)
-    caution = " ".join(c.text for c in _blocks(doc, Caution))
-    assert "start-up" in caution and "resonance" in caution
+    passage = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
+    assert "start-up" in passage.note and "resonance" in passage.note
+    assert passage.description == "Passage through resonance not assessed"
     # the passage amplitude quoted is the steady state at r = 1: (m_e e/m)/(2ζ) (Thomson Ch. 3)
     assert _equation(doc, "X_res").result.value == pytest.approx(0.0075 / 850 / 0.04)
 
@@ -498,6 +501,7 @@ def test_no_start_up_caution_below_resonance():
                 "force_amplitude": "500 N", "frequency": "3 Hz"})
     assert not _blocks(doc, Caution)
     assert not any(b.name == "X_res" for b in _blocks(doc, Equation))
+    assert "resonance-passage" not in _checks(doc)
 
 
 # ------------------------------------------------------------------ samples and contract
@@ -576,3 +580,41 @@ def test_us_customary_package_plots_in_inches_and_pounds_force():
     assert fig_us.panels[1].series[0].y[50] == pytest.approx(
         fig_si.panels[1].series[0].y[50] / 4.4482216152605, rel=1e-9)
     assert _results(us) == _results(si)  # results stay SI whatever the display
+
+
+def test_rms_criterion_is_compared_with_the_rms_value():
+    # Machinery vibration criteria are rms (ISO 10816/20816 family, broadband velocity rms;
+    # from memory); for one tone v_rms = v_peak/√2 (definition of rms of a sinusoid).
+    doc = _doc({"mass": "100 kg", "stiffness": "400 kN/m", "damping_ratio": 0.05,
+                "force_amplitude": "500 N", "frequency": "8 Hz"},
+               {"max_velocity_rms": "150 mm/s"})
+    r = _results(doc)
+    assert r["velocity_rms"] < 0.150 < r["velocity_amplitude"]
+    assert _checks(doc)["max-velocity-rms"] == "pass"  # the peak would have failed
+    check = next(c for c in _blocks(doc, Check) if c.id == "max-velocity-rms")
+    assert check.value.value == pytest.approx(r["velocity_amplitude"] / math.sqrt(2))
+    assert "/√2" in check.note
+
+
+def test_passage_without_criterion_is_information_not_assessed():
+    doc = _doc({"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+                "unbalance": "0.0075 kg*m", "speed": "980 rpm"})
+    c = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
+    assert c.status == "info" and c.description == "Passage through resonance not assessed"
+    assert c.limit is None
+
+
+def test_passage_criterion_makes_a_check_dwell_then_transient():
+    inputs = {"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+              "unbalance": "0.0075 kg*m", "speed": "980 rpm"}
+    # dwell at resonance: X = U/(2ζm) (Rao §3.7, rotating unbalance at r = 1)
+    dwell = _doc(inputs, {"max_passage_displacement": "100 um"})
+    c = next(c for c in _blocks(dwell, Check) if c.id == "resonance-passage")
+    assert c.value.value == pytest.approx(0.0075 / (2 * 0.02 * 850), rel=1e-9)
+    assert c.status == "fail"  # 221 µm > 100 µm
+    # a 5 s run-up passes quickly: the transient peak is well below the dwell value
+    # (physical invariant of a swept linear oscillator) and above the running amplitude
+    fast = _doc({**inputs, "run_up_time": "5 s"}, {"max_passage_displacement": "100 um"})
+    c = next(c for c in _blocks(fast, Check) if c.id == "resonance-passage")
+    r = _results(fast)
+    assert r["displacement_amplitude"] < c.value.value < 0.0075 / (2 * 0.02 * 850)

@@ -233,9 +233,14 @@ def mutations(base: dict[str, Any], plugins) -> list[tuple[str, dict[str, Any], 
             "cross-field")
     add("duplicate calc id", lambda d: d["calc"].append(copy.deepcopy(d["calc"][0])),
         "duplicate-calc-id")
+    # a deviation names the calc by its id: renaming the calc breaks that cross-field rule
+    named = any(dv.get("calc") == base["calc"][0].get("id")
+                for dv in pkg.get("deviations", []))
+    renamed = "cross-field" if named else None
     for label, value in [("capitals", "Pump_P1"), ("empty", ""), ("number", 5),
                          ("double dash", "a--b"), ("long", "a" * 65), ("ok", "pump-9")]:
-        add(f"calc.id {label}", lambda d, v=value: d["calc"][0].__setitem__("id", v))
+        add(f"calc.id {label}", lambda d, v=value: d["calc"][0].__setitem__("id", v),
+            renamed if label == "ok" else None)
     add("calc.plugin misspelled", lambda d: d["calc"][0].__setitem__("plugin", "free_vibraton"))
     add("calc.plugin missing", lambda d: d["calc"][0].pop("plugin"))
     add("calc.title missing", lambda d: d["calc"][0].pop("title"))

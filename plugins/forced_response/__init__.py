@@ -62,7 +62,7 @@ class ForcedResponse(CalcType):
                " m·x'' + c·x' + k·x = F(t) with a harmonic excitation.")
     inputs = (
         InputSpec(name="mass", symbol="m",
-                  description="Vibrating mass (for an unbalance: the whole machine, rotor"
+                  description="Vibrating mass (the whole supported machine, any rotor"
                               " included)", dimension="mass", positive=True, minimum=1e-3,
                   maximum=1e8),
         InputSpec(name="stiffness", symbol="k", description="Total support stiffness",
@@ -93,18 +93,30 @@ class ForcedResponse(CalcType):
         InputSpec(name="speed_range", symbol="N_range",
                   description="Speed range of the run-up plot", dimension="frequency",
                   required=False, kind="pair", minimum=0.0, maximum=1e4),
+        InputSpec(name="run_up_time", symbol="t_run",
+                  description="Time from rest to the operating frequency at constant"
+                              " acceleration (start-up; run-down taken as no slower)",
+                  dimension="time", required=False, positive=True, maximum=3600.0),
     )
     criteria = (
         InputSpec(name="min_resonance_margin", symbol="M_min",
                   description="Least separation |f − f_n|/f_n of forcing and natural frequency",
                   default=0.2, minimum=0.0, maximum=1.0,
-                  default_note="common practice, no source"),
+                  default_note="common practice"),
         InputSpec(name="max_displacement", symbol="X_max",
                   description="Largest acceptable displacement amplitude (zero-to-peak)",
                   dimension="length", required=False, positive=True),
         InputSpec(name="max_velocity", symbol="V_max",
                   description="Largest acceptable vibration velocity, peak (zero-to-peak)",
                   dimension="velocity", required=False, positive=True),
+        InputSpec(name="max_velocity_rms", symbol="V_rms,max",
+                  description="Largest acceptable vibration velocity, rms (as machinery"
+                              " vibration standards state it)",
+                  dimension="velocity", required=False, positive=True),
+        InputSpec(name="max_passage_displacement", symbol="X_pass,max",
+                  description="Largest acceptable displacement amplitude while passing"
+                              " through resonance at start-up and run-down",
+                  dimension="length", required=False, positive=True),
         InputSpec(name="max_transmitted_force", symbol="F_T,max",
                   description="Largest acceptable force amplitude into the support",
                   dimension="force", required=False, positive=True),
@@ -172,10 +184,6 @@ class ForcedResponse(CalcType):
               Paragraph(title="Method", text=text.method(kind)))
         v = working.write(s, kind, p, given)
         passes = passes_resonance(v.r, v.f_n, p.get("speed_range"))
-        x_res = None
-        if passes and v.zeta > 0:
-            x_res = working.passage_amplitude(s, kind, p, given, m, k, v.zeta, v.omega_n,
-                                              v.F_0)
         min_margin = crit["min_resonance_margin"]
         band = (v.f_n * (1 - min_margin), v.f_n * (1 + min_margin))
         s.add(Paragraph(title="Regime", text=text.regime(kind, v.r, v.zeta, v.phi, k,
@@ -184,7 +192,7 @@ class ForcedResponse(CalcType):
               Paragraph(text=text.velocity_and_margin(v.margin_f, min_margin, band)))
         checks.write(s, kind, crit, v, band, ctx.units)
         if passes:
-            s.add(Caution(text=text.passage_caution(v.r, v.f_n, v.zeta, x_res, ctx.units)))
+            working.passage(s, kind, p, given, crit, v, ctx.units)
         if v.margin < min_margin:
             s.add(Caution(text=text.band_caution(v.margin, min_margin, v.D)))
         s.add(Note(text=text.RATED_DATA))

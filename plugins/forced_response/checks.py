@@ -30,8 +30,14 @@ def write(s: Sheet, kind: str, crit: Mapping[str, float], v: Printed,
         s.check("max-velocity", "Vibration velocity (peak) within the limit",
                 value=v.V, limit=crit["max_velocity"], comparison="<=",
                 dimension="velocity",
-                note=f"RMS {quantity_text(v.V_rms, 'velocity', units)}; the criterion is"
-                     " compared with the peak")
+                note=f"peak criterion; rms {quantity_text(v.V_rms, 'velocity', units)}"
+                     " = peak/√2")
+    if "max_velocity_rms" in crit:
+        s.check("max-velocity-rms", "Vibration velocity (rms) within the limit",
+                value=v.V_rms, limit=crit["max_velocity_rms"], comparison="<=",
+                dimension="velocity",
+                note=f"rms criterion: V_rms = V/√2 = {quantity_text(v.V, 'velocity', units)}"
+                     "/√2 for a single tone")
     if "max_transmitted_force" in crit:
         s.check("max-transmitted-force", "Force into the support within the limit",
                 value=v.F_T, limit=crit["max_transmitted_force"], comparison="<=",

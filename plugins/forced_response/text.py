@@ -74,21 +74,24 @@ def regime(kind: str, r: float, zeta: float, phi: float, k: float, cw: float,
                                     " limits it)")
                 + f"; the phase lag passes through 90° at r = 1 (here φ = {deg}°).")
     else:
+        anti = ("nearly in anti-phase with it" if phi > math.radians(150) else
+                "well behind it, towards anti-phase")
         text = (f"Above resonance (r = {r_text} > {high}): mass-controlled."
-                " The inertia of the mass resists the excitation and the mass moves nearly in"
-                f" anti-phase (φ = {deg}°)")
+                f" The inertia of the mass resists the excitation and the mass moves {anti}"
+                f" (phase lag φ = {deg}°)")
         text += {"force": "; the amplitude tends to F_0/(m·ω²).",
                  "unbalance": "; the amplitude tends to m_e·e/m, independent of speed.",
                  "support": "; the mass stays nearly still while the support moves."}[kind]
         text += " Above r = √2 the transmissibility is below 1 (isolation)."
     return (text + " " + terms + f" Regime limits r < {low} and"
-            f" r > {high}: common practice, no source.")
+            f" r > {high}: common practice.")
 
 
 def velocity_and_margin(margin_f: float, min_margin: float, band: tuple[float, float]) -> str:
     return (
-        "Velocity is reported as a peak (zero-to-peak) value, V = ω·X, and as an RMS value,"
-        " V/√2; the max_velocity criterion, where given, is compared with the peak value."
+        "Velocity is reported as a peak (zero-to-peak) value, V = ω·X, and as an rms value,"
+        " V_rms = V/√2 (a single tone). A peak criterion is compared with the peak value and"
+        " an rms criterion (as in machinery vibration standards) with the rms value."
         " Resonance margin: this package uses |f − f_n|/f_n; practice also uses"
         f" |f − f_n|/f (here {format_number(margin_f, 4)}), shown for information only. The"
         f" resonance band is f_n·(1 ± {format_number(min_margin, 6)}) ="
@@ -100,17 +103,21 @@ def margin_note(margin_f: float, band: tuple[float, float]) -> str:
             f" |f − f_n|/f = {format_number(margin_f, 4)}")
 
 
-def passage_caution(r: float, fn: float, zeta: float, x_res: float | None, units: str) -> str:
-    lead = ("The forcing frequency is above the natural frequency" if r > 1 else
-            "The speed range crosses the natural frequency")
-    dwell = (" With no damping the resonance amplitude is unbounded." if zeta == 0 else
-             " A slow passage approaches the steady-state resonance amplitude"
-             f" X_res = {quantity_text(x_res, 'length', units)}." if x_res is not None else "")
-    return (f"{lead} ({format_number(fn, 4)} Hz = {format_number(fn * 60, 4)} rpm), so the"
-            " system passes through resonance at every start-up and run-down. The response"
-            " while passing is transient and is not covered by this steady-state calc." + dwell
-            + " Check the start-up and run-down times, and provide snubbers or travel"
-            " limits where the passage amplitude is not acceptable.")
+def passage_lead(kind: str, r: float, fn: float) -> str:
+    """Why the excitation meets the natural frequency on its way to the operating point."""
+    where = f"{format_number(fn, 4)} Hz = {format_number(fn * 60, 4)} rpm"
+    if kind == "unbalance":
+        return (f"The running speed is above the natural frequency ({where}): every start-up"
+                " and run-down passes through resonance." if r > 1 else
+                f"The stated speed range crosses the natural frequency ({where}).")
+    return (f"The stated frequency range crosses the natural frequency ({where}): an"
+            " excitation whose frequency rises from below it passes through resonance."
+            if r <= 1 else f"The forcing frequency is above the natural frequency ({where}):"
+            " if it rises from rest when the equipment starts, it passes through resonance.")
+
+
+def passage_note(lead: str, how: str) -> str:
+    return f"{lead} {how}"
 
 
 def band_caution(margin: float, min_margin: float, dyn: float) -> str:

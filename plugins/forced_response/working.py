@@ -3,6 +3,7 @@ Sheet evaluates each printed formula, so the values that follow are the printed 
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
@@ -12,10 +13,14 @@ from reportgen_plugins.mechanics import (
     amplification_formula,
     critical_damping_formula,
     phase_lag_formula,
+    quantity_text,
 )
+from reportgen_plugins.mechanics.passage import MAX_CYCLES, run_up_cycles, run_up_peak
 
 from reportgen import Sheet
+from reportgen.units import format_number
 
+from . import text
 from .method import unbalance
 
 
@@ -188,3 +193,52 @@ def passage_amplitude(s: Sheet, kind: str, p: Mapping[str, Any], given: frozense
                           Y=p["base_displacement"], description=what)
     return s.equation("X_res", "sqrt(1 + (2*zeta)**2)/(2*zeta)*a_b/omega_n**2", "length",
                       zeta=zeta, a_b=p["base_acceleration"], omega_n=wn, description=what)
+
+
+def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
+            crit: Mapping[str, Any], v: Printed, units: str) -> None:
+    """Passage through resonance: a check against max_passage_displacement, with the
+    transient of a constant-acceleration run-up when run_up_time is given (else the
+    steady amplitude of a dwell at resonance); information when no criterion is given."""
+    lead = text.passage_lead(kind, v.r, v.f_n)
+    if v.zeta == 0:
+        s.check("resonance-passage", "Passage through resonance: undamped, the amplitude is"
+                " unbounded", status="fail" if "max_passage_displacement" in crit else "info",
+                note=text.passage_note(lead, "State the damping."))
+        return
+    x_res = passage_amplitude(s, kind, p, given, p["mass"], p["stiffness"], v.zeta,
+                              v.omega_n, v.F_0)
+    how = ("Steady-state amplitude of a dwell at resonance (no run-up time stated: the"
+           " slowest passage).")
+    value = x_res
+    if "run_up_time" in given and kind in ("force", "unbalance"):
+        f_end = v.f
+        rng = p.get("speed_range")
+        if v.r <= 1 and rng is not None and rng[1] > v.f_n:
+            f_end = rng[1]  # the run-up crosses f_n on its way to the top of the range
+        t_ramp = p["run_up_time"] * f_end / v.f  # the same acceleration, to f_end
+        if run_up_cycles(f_end, v.f_n, t_ramp, v.zeta) <= MAX_CYCLES:
+            power = 2 if kind == "unbalance" else 0
+            run = run_up_peak(f_end, v.f_n, v.zeta, t_ramp, power)
+            f_static = (unbalance(p) * (2 * math.pi * f_end) ** 2 if kind == "unbalance"
+                        else v.F_0)
+            value = s.result("passage_displacement",
+                             run.displacement_ratio * f_static / p["stiffness"], "length",
+                             "X_pass", "Largest displacement while passing through resonance"
+                             " (transient run-up, integrated)")
+            how = (f"Transient of a run-up from rest at constant acceleration"
+                   f" ({format_number(f_end / t_ramp, 3)} Hz/s, from the stated run-up time),"
+                   f" integrated in time; the largest displacement occurs at"
+                   f" {format_number(run.peak_frequency, 3)} Hz, against"
+                   f" {quantity_text(x_res, 'length', units)} for a dwell at resonance.")
+        else:
+            how = ("Run-up too long to integrate within the cost bound: " + how)
+    if "max_passage_displacement" in crit:
+        s.check("resonance-passage", "Displacement while passing through resonance within"
+                " the limit", value=value, limit=crit["max_passage_displacement"],
+                comparison="<=", dimension="length", note=text.passage_note(lead, how))
+    else:
+        s.check("resonance-passage", "Passage through resonance not assessed",
+                status="info", value=value, dimension="length",
+                note=text.passage_note(lead, how + " No passage criterion"
+                                       " (max_passage_displacement) is given."))

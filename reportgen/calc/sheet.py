@@ -125,6 +125,9 @@ class Sheet:
               limit: float | None = None, dimension: str = "dimensionless",
               comparison: str = "", status: Status | None = None, note: str = "") -> Check:
         """Record a design check; status follows from value, limit and comparison."""
+        if status == "info" and limit is not None:
+            raise ValueError(f"check {id!r}: a row with a criterion is pass or fail; leave"
+                             " out the status, or the limit for information")
         if status is None:
             if value is None or limit is None:
                 raise ValueError("a check needs a status, or a value, a limit and a comparison")

@@ -18,7 +18,7 @@ from reportgen.calc.sheet import CalcContext, CalcOutput
 from reportgen.calc.spec import InputSpec
 from reportgen.document import envelope
 from reportgen.document.transforms import apply_transforms
-from reportgen.errors import PluginError, ReportgenError, VerificationError
+from reportgen.errors import JobError, PluginError, Problem, ReportgenError, VerificationError
 from reportgen.job.load import CalcSpec, Job
 from reportgen.model import (
     BLOCK_TYPES,
@@ -80,11 +80,37 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
             seen.add(reg.name)
             software.append((f"calc type {reg.name}", reg.package,
                              reg.calc_type.version))
+    check_deviations(job, sections)
     doc = Document(info=job.info, revision_history=job.revision_history,
                    sections=tuple(sections), software=tuple(software),
                    schedule=job.schedule, schedule_source=job.schedule_source,
-                   schedule_results=_schedule_results(job, plugins, sections))
+                   schedule_results=_schedule_results(job, plugins, sections),
+                   deviations=job.deviations)
     return apply_transforms(doc)
+
+
+def check_deviations(job: Job, sections: list[Section]) -> None:
+    """Refuse a deviation whose check the named calc does not report, or reports as
+    information (only a pass/fail check can be accepted)."""
+    problems = []
+    by_id = {s.calc_id: s for s in sections}
+    for i, d in enumerate(job.deviations):
+        section = by_id.get(d.calc)
+        if section is None:
+            continue  # the loader has refused it
+        ids = {c.id: c for c in section.checks}
+        where = f"package.deviations[{i}].check"
+        if d.check not in ids:
+            known = ", ".join(c.id for c in section.checks if c.status != "info")
+            problems.append(Problem(str(job.path), f"calc '{d.calc}' has no check"
+                                    f" '{d.check}'; its checks are: {known or 'none'}",
+                                    field=where))
+        elif ids[d.check].status == "info":
+            problems.append(Problem(str(job.path), f"'{d.check}' of calc '{d.calc}' is"
+                                    " information, not a pass/fail check: there is nothing"
+                                    " to accept", field=where))
+    if problems:
+        raise JobError(problems)
 
 
 def calc_context(spec: CalcSpec, units: str) -> CalcContext:
@@ -245,8 +271,7 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
         if isinstance(written, dict):  # { value = ..., source = ..., tolerance = ... }
             written = written.get("value")
         named = sources.get(f"{table}.{sp.name}")
-        source = (f"job file: {written}" if isinstance(written, (str, int, float))
-                  and not isinstance(written, bool) else "job file") if sp.name in given else (
+        source = "job file" if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
         if named:
             source = named
@@ -259,6 +284,14 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
             rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
                                  quantity=None, text=text,
                                  source=named or ("job file" if sp.name in given else source)))
+            continue
+        if sp.kind == "points" and isinstance(written, list):
+            # one row for all the points, as the job writes them (x, y); a calc type that
+            # tabulates them by position shows them again with its results
+            text = "; ".join("(" + ", ".join(str(c) for c in pt) + ")" if isinstance(
+                pt, list) else str(pt) for pt in written)
+            rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,
+                                 quantity=None, text=text, source=source))
             continue
         if sp.kind in ("pair", "points"):
             flat = [v for v in _flatten(value)]

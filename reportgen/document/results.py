@@ -63,6 +63,12 @@ def _results(doc: Document) -> dict[str, Any]:
             "status": doc.status,
             "checks_total": len(checks),
             "checks_failed": len(doc.failed),
+            "checks_failed_unaccepted": len(doc.unaccepted),
+            "fit_to_issue": doc.fit_to_issue,
+            "deviations": [
+                {"calc": d.calc, "check": d.check, "justification": d.justification,
+                 "accepted_by": d.accepted_by, "date": d.date or None}
+                for d in doc.deviations],
         },
         "calcs": [
             {
@@ -74,6 +80,7 @@ def _results(doc: Document) -> dict[str, Any]:
                 "checks": [
                     {"id": c.id, "description": c.description, "status": c.status,
                      "value": _q(c.value), "limit": _q(c.limit), "comparison": c.comparison,
+                     "accepted_deviation": doc.deviation(s.calc_id, c.id) is not None,
                      **_governing(c)}
                     for c in s.checks
                 ],

@@ -30,7 +30,7 @@ from reportgen.job.orders import (
     parse_orders,
 )
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
-from reportgen.model import PackageInfo, RevisionEntry, ScheduleItem
+from reportgen.model import Deviation, PackageInfo, RevisionEntry, ScheduleItem
 from reportgen.units import DIMENSIONS, Spread, UnitProblem, parse_quantity, parse_spread
 
 MAX_JOB_BYTES = 1_000_000
@@ -64,6 +64,7 @@ PACKAGE_KEYS = {
     "prepared_by": False, "prepared_date": False, "checked_by": False, "checked_date": False,
     "approved_by": False, "approved_date": False, "revision_history": False,
     "template_dir": False, "firm": False, "previous_package": False, "attachments": False,
+    "deviations": False,
 }
 #: What each [package] key holds ("name": text that also names the output files).
 PACKAGE_KINDS = {
@@ -72,10 +73,13 @@ PACKAGE_KINDS = {
     "prepared_by": "text", "prepared_date": "date", "checked_by": "text",
     "checked_date": "date", "approved_by": "text", "approved_date": "date",
     "revision_history": "history", "template_dir": "folder", "firm": "text",
-    "previous_package": "path", "attachments": "files",
+    "previous_package": "path", "attachments": "files", "deviations": "deviations",
 }
 #: The keys of one [[package.revision_history]] entry, and whether each is required.
 HISTORY_KEYS = {"revision": True, "date": False, "description": True, "by": False}
+#: The keys of one [[package.deviations]] entry (an accepted failing check).
+DEVIATION_KEYS = {"calc": True, "check": True, "justification": True, "accepted_by": True,
+                  "date": False}
 UNIT_SYSTEMS = ("SI", "US")
 #: the keys of an input written as a table: { value = "...", source = "...", tolerance = "..." }
 WRAPPER_KEYS = ("value", "source", "tolerance")
@@ -140,6 +144,7 @@ class Job:
     schedule_source: str = ""
     criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary,
                                               compare=False, repr=False)
+    deviations: tuple[Deviation, ...] = ()
 
     @property
     def stem(self) -> str:
@@ -308,12 +313,14 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         calcs.extend(_schedule_calcs(v, schedule, plugins, seen, len(calcs_raw)))
         attachments = _with_schedule(v, attachments, schedule)
     attachments = v.with_data_files(attachments, calcs)
+    deviations = v.deviations(pkg, {c.id for c in calcs})
     if problems:
         raise JobError(problems)
     assert info is not None
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
                calcs=tuple(calcs), template_dir=job_template, previous_package=previous,
                raw=raw, attachments=attachments, criteria_library=v.library,
+               deviations=deviations,
                schedule=schedule.items if schedule is not None else (),
                schedule_source=schedule.where() if schedule is not None else "")
 
@@ -621,6 +628,41 @@ class _Validator:
             units=units, prepared_by=t["prepared_by"], checked_by=t["checked_by"],
             approved_by=t["approved_by"], firm=t["firm"], **dates)
         return info, tuple(history), template_dir, previous
+
+    def deviations(self, pkg: Mapping[str, Any], calc_ids: set[str]) -> tuple[Deviation, ...]:
+        """[[package.deviations]]: each names a calc of this job and says why its failing
+        check is accepted (the check id is checked once the calc has run)."""
+        raw = pkg.get("deviations", [])
+        if not isinstance(raw, list):
+            self.add("expected an array of tables [[package.deviations]]",
+                     field="package.deviations")
+            return ()
+        out: list[Deviation] = []
+        seen: set[tuple[str, str]] = set()
+        for i, d in enumerate(raw):
+            where = f"package.deviations[{i}]."
+            if not isinstance(d, dict):
+                self.add("expected a table with calc, check, justification, accepted_by"
+                         " and date", field=where.rstrip("."))
+                continue
+            for key in d:
+                if key not in DEVIATION_KEYS:
+                    self.add(f"unknown field '{key}'{_nearest(key, list(DEVIATION_KEYS))}",
+                             field=where + key)
+            t = {k: self._text(d, k, where, req) for k, req in DEVIATION_KEYS.items()
+                 if k != "date"}
+            if t["calc"] and t["calc"] not in calc_ids:
+                self.add(f"no calc with id '{t['calc']}' in this job"
+                         f"{_nearest(t['calc'], sorted(calc_ids))}", field=where + "calc")
+            if (t["calc"], t["check"]) in seen:
+                self.add(f"a second deviation for {t['calc']}/{t['check']}",
+                         field=where + "check")
+            seen.add((t["calc"], t["check"]))
+            out.append(Deviation(calc=t["calc"], check=t["check"],
+                                 justification=t["justification"],
+                                 accepted_by=t["accepted_by"],
+                                 date=self._date(d, "date", where)))
+        return tuple(out)
 
     def attachments(self, pkg: Mapping[str, Any], path: Path) -> tuple[JobAttachment, ...]:
         """Files listed in ``[package] attachments``: regular files inside the job folder."""

@@ -17,6 +17,7 @@ from reportgen.calc.spec import Column, InputSpec
 from reportgen.job.load import (
     CALC_KEYS,
     DATE_PATTERN,
+    DEVIATION_KEYS,
     HISTORY_KEYS,
     ID_PATTERN,
     MAX_ATTACHMENTS,
@@ -47,7 +48,8 @@ KNOWN_DIFFERENCES = {
                    " 1e308, or a positive value that rounds to zero)",
     "cross-field": "a calc type's own cross-field rules (exactly one excitation, damping"
                    " as a ratio or a coefficient but not both, a range's two ends in order,"
-                   " the revision history holding the current revision)",
+                   " the revision history holding the current revision, a deviation"
+                   " naming a calc of the job)",
     "files": "files and folders the job names (attachments, template_dir,"
              " previous_package) must exist beside the job file",
     "unit-expressions": "unit expressions beyond the forms listed per dimension (e.g."
@@ -414,6 +416,13 @@ def _package_field(key: str, required: bool) -> dict[str, Any]:
             "required": [k for k, req in HISTORY_KEYS.items() if req],
             "properties": {k: (_date() if k == "date" else _text(req))
                            for k, req in HISTORY_KEYS.items()}}}
+    if kind == "deviations":
+        return {"type": "array", "description": "failing checks accepted, each with its"
+                " justification", "items": {
+                    "type": "object", "additionalProperties": False,
+                    "required": [k for k, req in DEVIATION_KEYS.items() if req],
+                    "properties": {k: (_date() if k == "date" else _text(req))
+                                   for k, req in DEVIATION_KEYS.items()}}}
     if kind == "files":
         return {"type": "array", "maxItems": MAX_ATTACHMENTS, "uniqueItems": True,
                 "items": {"type": "string", "description": "a file inside the job's folder,"

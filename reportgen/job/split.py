@@ -28,6 +28,11 @@ def row_source(job: Job, tag: str) -> bytes:
     package = {k: v for k, v in dict(job.raw.get("package", {})).items()
                if k != "previous_package"}  # a revision of the whole schedule, not of a row
     package["calc_number"] = f"{job.info.calc_number}-{tag}"
+    if "deviations" in package:  # only the row's own accepted deviations
+        package["deviations"] = [d for d in package["deviations"]
+                                 if isinstance(d, dict) and d.get("calc") == item.calc_id]
+        if not package["deviations"]:
+            del package["deviations"]
     calc: dict[str, Any] = {"id": spec.id, "plugin": spec.plugin, "title": spec.title}
     if spec.notes:
         calc["notes"] = spec.notes

@@ -3,6 +3,7 @@ the "Changes since revision X" section a new revision gains from its previous pa
 
 from __future__ import annotations
 
+import dataclasses
 import tempfile
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -10,7 +11,8 @@ from typing import TYPE_CHECKING, Any
 from reportgen.errors import JobError, Problem
 from reportgen.model import Document
 from reportgen.package.archive import load_embedded_job, open_package
-from reportgen.package.compare import Side, describe_changes
+from reportgen.package.change_table import change_table
+from reportgen.package.compare import Side, compare, describe_changes
 
 if TYPE_CHECKING:
     from reportgen.job.load import Job
@@ -81,6 +83,10 @@ def changes_since(doc: Document, job: Job) -> Document:
                         for pr in exc.problems]) from None
     lines = describe_changes(previous.results, results_data(doc),
                              previous_job=previous.job_raw, new_job=dict(job.raw))
+    table = change_table(compare(Side(label="previous", job_raw=previous.job_raw,
+                                      results=previous.results),
+                                 Side(label="this revision", job_raw=dict(job.raw),
+                                      results=results_data(doc))), doc)
     prev_pkg = previous.results.get("package", {})
     if prev_pkg.get("calc_number") != job.info.calc_number:
         lines.insert(0, f"The previous package is calc {prev_pkg.get('calc_number', '?')},"
@@ -100,5 +106,6 @@ def changes_since(doc: Document, job: Job) -> Document:
     label = str(prev_pkg.get("revision", "")) or "?"
     if prev_pkg.get("date"):
         label += f" ({prev_pkg['date']})"
-    return with_changes(doc, tuple(lines) or ("No inputs, results or check statuses"
-                                               " changed.",), label)
+    doc = with_changes(doc, tuple(lines) or ("No inputs, results or check statuses"
+                                              " changed.",), label)
+    return dataclasses.replace(doc, changes_table=table if table.rows else None)

@@ -83,9 +83,12 @@ def refuse_final(doc: Document, job: Job) -> None:
                  "checked": "has been checked but not approved"}[doc.review_state]
         problems.append(Problem(str(job.path), f"--final refused: the package {state}"
                                 " (set checked_by and approved_by)", field="package"))
-    if doc.failed:
-        ids = ", ".join(f"{s.calc_id}/{c.id}" for s, c in doc.failed)
-        problems.append(Problem(str(job.path), f"--final refused: design checks fail: {ids}"))
+    if doc.unaccepted:
+        ids = ", ".join(f"{s.calc_id}/{c.id}" for s, c in doc.unaccepted)
+        problems.append(Problem(str(job.path), f"--final refused: design checks fail without"
+                                f" an accepted deviation: {ids} (record each in"
+                                " [[package.deviations]] or change the design)",
+                                field="package.deviations"))
     unverified = [s.calc_id for s in doc.sections if s.verification is None]
     if unverified:
         problems.append(Problem(str(job.path), "--final refused: calcs not independently"

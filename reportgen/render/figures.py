@@ -6,6 +6,7 @@ Deterministic output: fixed hash salt, no date metadata, text kept as text.
 from __future__ import annotations
 
 import io
+from typing import Any
 
 from reportgen.model import Figure
 
@@ -18,12 +19,12 @@ FIGURE_WIDTH_IN = 6.3
 
 
 def figure_inches(fig: Figure) -> tuple[float, float]:
-    """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.7 in more
+    """The drawing's size (width, height) in inches: 2.5 in for one panel, 1.4 in more
     for each further panel (in a grid: 2.1 in per row of small multiples). Known before
     drawing, so the layout can start without it."""
     if fig.columns > 1:
         return FIGURE_WIDTH_IN, 2.1 * -(-len(fig.panels) // fig.columns)
-    return FIGURE_WIDTH_IN, 2.5 + 1.7 * (len(fig.panels) - 1)
+    return FIGURE_WIDTH_IN, 2.5 + 1.4 * (len(fig.panels) - 1)
 
 
 def figure_points(fig: Figure) -> tuple[float, float]:
@@ -32,6 +33,56 @@ def figure_points(fig: Figure) -> tuple[float, float]:
 
 
 def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
+    import matplotlib.pyplot as plt
+
+    f = draw(fig)
+    try:
+        buf = io.BytesIO()
+        f.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
+    finally:
+        plt.close(f)
+    return buf.getvalue()
+
+
+def text_overlaps(f: Any) -> list[tuple[str, str]]:
+    """Pairs of visible texts of a drawn matplotlib figure whose extents overlap, and texts
+    reaching outside the figure (paired with "figure edge")."""
+    f.canvas.draw()
+    renderer = f.canvas.get_renderer()
+    page = f.bbox
+    ticks = set()
+    for ax in f.axes:
+        for axis in (ax.xaxis, ax.yaxis):
+            ticks.update(id(t.label1) for t in axis.get_major_ticks()
+                         + axis.get_minor_ticks())
+    drawn = set()  # the tick labels matplotlib draws: those inside the view interval
+    for ax in f.axes:
+        for axis in (ax.xaxis, ax.yaxis):
+            drawn.update(id(t.label1) for t in axis._update_ticks() if t.label1.get_visible())
+    boxes = []
+    for t in f.findobj(lambda a: type(a).__name__ in ("Text", "Annotation")):
+        if not t.get_visible() or not t.get_text().strip():
+            continue
+        if id(t) in ticks and id(t) not in drawn:
+            continue
+        bb = t.get_window_extent(renderer)
+        if bb.width <= 0 or bb.height <= 0:
+            continue
+        boxes.append((t.get_text(), bb))
+    out = []
+    for i, (a, ba) in enumerate(boxes):
+        if ba.x0 < page.x0 - 1 or ba.x1 > page.x1 + 1 or ba.y0 < page.y0 - 1 or (
+                ba.y1 > page.y1 + 1):
+            out.append((a, "figure edge"))
+        for b, bb in boxes[i + 1:]:
+            if ba.overlaps(bb) and ba.intersection(ba, bb).width > 1 and (
+                    ba.intersection(ba, bb).height > 1):
+                out.append((a, b))
+    return out
+
+
+def draw(fig: Figure) -> Any:
+    """The figure drawn with matplotlib (the caller closes it)."""
     import matplotlib
 
     matplotlib.use("Agg", force=True)
@@ -42,7 +93,7 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
         "font.size": 8.5, "axes.linewidth": 0.6, "axes.grid": True, "grid.linewidth": 0.4,
         "grid.color": "#c8c8c8", "lines.linewidth": 1.3, "legend.fontsize": 7.5,
         "legend.frameon": False, "xtick.direction": "in", "ytick.direction": "in",
-        "path.simplify": True,
+        "path.simplify": True, "xtick.major.pad": 7.0,
     })
     n, cols = len(fig.panels), max(1, fig.columns)
     grid = cols > 1
@@ -104,8 +155,7 @@ def figure_svg(fig: Figure, display_units: str = "SI") -> bytes:
                 last.set_xlim(*fig.x_range)
             last.set_xlabel(fig.x_label)
         f.tight_layout(pad=0.4)
-        buf = io.BytesIO()
-        f.savefig(buf, format="svg", metadata={"Date": None, "Creator": None})
-    finally:
+    except BaseException:
         plt.close(f)
-    return buf.getvalue()
+        raise
+    return f

@@ -134,6 +134,16 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
         label = quantity_parts(Quantity(value=1.0, dimension=dimension), units)[1]
         return f" ({label})" if label else ""
 
+    def header_html(text: str) -> Markup:
+        """A column header whose trailing unit ("[lbf/in]", "(mm/s)") never wraps."""
+        import re
+
+        m = re.search(r"\s*([\[(][^\[\]()]*[\])])$", text)
+        if not m:
+            return escape(text)
+        return Markup(f"{escape(text[:m.start()])} <span class=\"nowrap\">"
+                      f"{escape(m.group(1))}</span>")
+
     def cell_is_number(cell: Any) -> bool:
         return isinstance(cell, (int, float, Quantity)) and not isinstance(cell, bool)
 
@@ -163,6 +173,7 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
 
     env.globals.update(
         column_unit=column_unit, matrix_unit=matrix_unit, cell_is_number=cell_is_number,
+        header_html=header_html,
         cell_text=cell_text, matrix_cell=matrix_cell,
         asset=asset, block_kind=lambda b: type(b).__name__, sym=symbol_html, qv=qv, qu=qu,
         q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=units,
@@ -188,11 +199,17 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
     from reportgen.render.theme import template_failure
 
     env = make_env(template_dir, doc.info.units, assets, extra_hook)
+    refs = references(doc)
+    numbers = reference_numbers(doc, refs)
+    env.globals.update(references=refs, ref_no=lambda text: numbers.get(text, 0),
+                       is_document=is_document)
+    env.filters["ref_no"] = lambda text: numbers.get(text, 0)
     try:
         template = env.get_template("package.html")
+        mark = issue_mark(doc)
         html = template.render(doc=doc, info=doc.info, logo=logo,
-                               watermark=watermark_uri(doc.review_state),
-                               watermark_text=WATERMARKS.get(doc.review_state, ""))
+                               watermark=watermark_uri(mark),
+                               watermark_text=WATERMARKS.get(mark, ""))
     except (jinja2.TemplateError, ThemeError) as exc:
         raise template_failure(exc, template_dir, builtin_templates()) from exc
     css = getattr(assets, "css", "")  # the equations' math font (render.assets.Assets)
@@ -203,7 +220,61 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
     return html
 
 
-WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED"}
+def is_document(source: str) -> bool:
+    """Whether an input's source names a document (not the job file or a default)."""
+    return bool(source) and not source.startswith(("job file", "default", "derived"))
+
+
+def _book(citation: str) -> tuple[str, str]:
+    """A citation split into the work and the part cited (after the first ': ')."""
+    work, sep, part = citation.partition(": ")
+    return (work, part) if sep else (citation, "")
+
+
+def references(doc: Document) -> list[str]:
+    """Every document the package cites, once, in order of first citation: each calc
+    type's published sources (one entry per work, its cited parts joined), then the
+    documents the inputs name."""
+    parts: dict[str, list[str]] = {}
+    for s in doc.sections:
+        for src in s.sources:
+            work, part = _book(src.citation)
+            cited = parts.setdefault(work, [])
+            if part and part not in cited:
+                cited.append(part.rstrip("."))
+    out = [f"{w}: {'; '.join(p)}." if p else w for w, p in parts.items()]
+    for s in doc.sections:
+        for b in s.blocks:
+            for row in getattr(b, "rows", ()) if type(b).__name__ == "InputsTable" else ():
+                if is_document(row.source) and row.source not in out:
+                    out.append(row.source)
+    return out
+
+
+def reference_numbers(doc: Document, refs: list[str]) -> dict[str, int]:
+    """The number each citation (a plugin source or an input's document) is cited by."""
+    works = [_book(r)[0] if i < len(refs) else r for i, r in enumerate(refs)]
+    numbers: dict[str, int] = {}
+    for s in doc.sections:
+        for src in s.sources:
+            work = _book(src.citation)[0]
+            if work in works:
+                numbers[src.citation] = works.index(work) + 1
+    for i, r in enumerate(refs, start=1):
+        numbers.setdefault(r, i)
+    return numbers
+
+
+WATERMARKS = {"preliminary": "PRELIMINARY – NOT CHECKED", "checked": "CHECKED – NOT APPROVED",
+              "unaccepted": "NOT FIT TO ISSUE"}
+
+
+def issue_mark(doc: Document) -> str:
+    """The mark every page carries: the review state, or, for an approved package with a
+    failing check that no deviation accepts, "unaccepted"; none when fit to issue."""
+    if doc.review_state == "approved":
+        return "unaccepted" if doc.unaccepted else ""
+    return doc.review_state
 
 
 def watermark_uri(review_state: str) -> str:
