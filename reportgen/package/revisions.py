@@ -92,8 +92,6 @@ def changes_since(doc: Document, job: Job) -> Document:
         lines.insert(0, f"The previous package is calc {prev_pkg.get('calc_number', '?')},"
                         f" not {job.info.calc_number}: check [package] previous_package.")
     if doc.schedule:
-        import dataclasses
-
         from reportgen.package.compare import schedule_changes
 
         doc = dataclasses.replace(doc, schedule_changes=schedule_changes(
@@ -103,9 +101,10 @@ def changes_since(doc: Document, job: Job) -> Document:
                                                           or {}).get("rows", [])}
         lines = [ln for ln in lines if not any(ln.startswith((f"{i}: ", f"Calc {i} "))
                                                for i in ids)]
+        table = None  # row by row the schedule's table says it; the rest as lines
     label = str(prev_pkg.get("revision", "")) or "?"
     if prev_pkg.get("date"):
         label += f" ({prev_pkg['date']})"
     doc = with_changes(doc, tuple(lines) or ("No inputs, results or check statuses"
                                               " changed.",), label)
-    return dataclasses.replace(doc, changes_table=table if table.rows else None)
+    return dataclasses.replace(doc, changes_table=table if table and table.rows else None)
