@@ -1,8 +1,207 @@
-"""block_foundation: rotating-machine foundations on soil (in progress)."""
+"""block_foundation: a rotating machine on a rigid concrete block on soil, by the lumped
+half-space analogs: natural frequencies, amplitudes at the running speed, and the checks.
+"""
 
-from reportgen import hookimpl
+from __future__ import annotations
+
+from reportgen import (
+    Assumptions,
+    CalcContext,
+    CalcOutput,
+    CalcType,
+    Caution,
+    InputSpec,
+    Paragraph,
+    Sheet,
+    Source,
+    Table,
+    VerificationCase,
+    VerificationRow,
+    hookimpl,
+)
+from reportgen.units import format_number
+
+from . import checks, figures, text, working
+from .errors import FoundationError
+from .method import (
+    DEFAULT_FREQUENCY_SEPARATION,
+    DEFAULT_MAX_ECCENTRICITY,
+    DEFAULT_MIN_MASS_RATIO,
+    SHAFT_AXES,
+    frequency_separation,
+)
+from .verify import verification_rows
+
+__version__ = "0.1.0"
+
+RHW = Source(key="richart-hall-woods-1970", citation=(
+    "F.E. Richart Jr., J.R. Hall Jr. & R.D. Woods, Vibrations of Soils and Foundations,"
+    " Prentice-Hall, 1970: Ch. 7 (lumped analogs: Lysmer's vertical, Hall's sliding and"
+    " rocking, torsion) and Ch. 10 (equivalent radii, coupled rocking and sliding)."))
+LYSMER = Source(key="lysmer-richart-1966", citation=(
+    "J. Lysmer & F.E. Richart Jr., Dynamic response of footings to vertical loading, ASCE"
+    " Journal of the Soil Mechanics and Foundations Division 92(SM1), 1966."))
+ACI351 = Source(key="aci-351-3r", citation=(
+    "ACI 351.3R, Report on Foundations for Dynamic Equipment, American Concrete Institute"
+    " (practice: frequency separation, mass ratio, eccentricity)."))
+ISO21940 = Source(key="iso-21940-11", citation=(
+    "ISO 21940-11, Mechanical vibration, Rotor balancing, Part 11: Procedures and tolerances"
+    " for rotors with rigid behaviour (balance quality grades, G = e·ω)."))
+
+_CASE_RHW = RHW.citation
+
+
+def _q(name, symbol, description, dimension, **kw) -> InputSpec:
+    return InputSpec(name=name, symbol=symbol, description=description, dimension=dimension,
+                     required=kw.pop("required", True), **kw)
+
+
+class BlockFoundation(CalcType):
+    name = "block_foundation"
+    title = "Block foundation for a rotating machine"
+    version = __version__
+    api_version = 1
+    purpose = ("Find the natural frequencies of the machine's block foundation on the soil and"
+               " its vibration amplitude at the running speed, and check them against the"
+               " separation, amplitude, bearing-pressure, mass-ratio and eccentricity"
+               " criteria.")
+    inputs = (
+        _q("block_length", "L", "Block length (along x)", "length", positive=True,
+           maximum=100.0),
+        _q("block_width", "B", "Block width (along y)", "length", positive=True,
+           maximum=100.0),
+        _q("block_height", "H", "Block height", "length", positive=True, maximum=20.0),
+        _q("concrete_density", "rho_c", "Density of the concrete", "density", default=2400.0,
+           minimum=1500.0, maximum=3000.0, default_note="normal-weight reinforced concrete"),
+        _q("machine_mass", "m_m", "Machine mass", "mass", positive=True, maximum=1e7),
+        _q("machine_cg_height", "h_m", "Machine's centre of gravity above the block's base",
+           "length", positive=True, maximum=50.0),
+        _q("machine_cg_x", "x_m", "Machine's centre of gravity from the centre of the base,"
+           " along x", "length", default=0.0, minimum=-50.0, maximum=50.0),
+        _q("machine_cg_y", "y_m", "Machine's centre of gravity from the centre of the base,"
+           " along y", "length", default=0.0, minimum=-50.0, maximum=50.0),
+        _q("machine_inertia_x", "I_mx", "Machine's moment of inertia about x through its"
+           " centre of gravity", "moment_of_inertia", default=0.0, minimum=0.0, maximum=1e9,
+           default_note="machine taken as a point mass"),
+        _q("machine_inertia_y", "I_my", "Machine's moment of inertia about y through its"
+           " centre of gravity", "moment_of_inertia", default=0.0, minimum=0.0, maximum=1e9,
+           default_note="machine taken as a point mass"),
+        _q("machine_inertia_z", "I_mz", "Machine's moment of inertia about the vertical"
+           " through its centre of gravity", "moment_of_inertia", default=0.0, minimum=0.0,
+           maximum=1e9, default_note="machine taken as a point mass"),
+        _q("shear_modulus", "G", "Shear modulus of the soil (small strain)", "pressure",
+           required=False, positive=True, maximum=1e11),
+        _q("shear_wave_velocity", "V_s", "Shear-wave velocity of the soil", "velocity",
+           required=False, positive=True, maximum=5000.0),
+        _q("poisson_ratio", "nu", "Poisson's ratio of the soil", "dimensionless",
+           minimum=0.0, maximum=0.5),
+        _q("soil_density", "rho_s", "Density of the soil", "density", positive=True,
+           minimum=800.0, maximum=3500.0),
+        _q("embedment_depth", "D_e", "Depth of the base below grade", "length", default=0.0,
+           minimum=0.0, maximum=20.0, default_note="block on the surface"),
+        _q("running_speed", "f", "Running speed", "frequency", positive=True, maximum=1000.0),
+        _q("unbalance", "U", "Unbalance m·e", "mass_length", required=False, positive=True,
+           maximum=1e3),
+        InputSpec(name="balance_grade", symbol="G", description="Balance quality grade"
+                  " (ISO 21940-11), written \"G6.3\"", kind="text", required=False,
+                  max_length=12),
+        _q("rotor_mass", "m_r", "Rotor mass (with balance_grade)", "mass", required=False,
+           positive=True, maximum=1e7),
+        _q("force_amplitude", "F_0", "Force amplitude at the running speed (stated)", "force",
+           required=False, positive=True, maximum=1e9),
+        _q("force_height", "h_F", "Height of the force above the base", "length",
+           required=False, minimum=0.0, maximum=50.0),
+        InputSpec(name="shaft_axis", symbol="", description="Direction of the shaft (the"
+                  " horizontal force is perpendicular to it)", kind="choice",
+                  choices=SHAFT_AXES, default="y"),
+    )
+    criteria = (
+        _q("min_frequency_separation", "s_min", "Band around the running speed that every"
+           " natural frequency must stay out of (fraction)", "dimensionless",
+           default=DEFAULT_FREQUENCY_SEPARATION, minimum=0.0, maximum=1.0,
+           default_note="common practice"),
+        _q("max_amplitude", "A_lim", "Largest amplitude at the machine", "length",
+           required=False, positive=True),
+        _q("max_velocity", "v_lim", "Largest vibration velocity at the machine", "velocity",
+           required=False, positive=True),
+        InputSpec(name="limit_measure", symbol="", description="How max_amplitude and"
+                  " max_velocity are stated", kind="choice",
+                  choices=("peak", "rms", "peak_to_peak"), default="peak"),
+        _q("allowable_bearing_pressure", "q_a", "Allowable bearing pressure (geotechnical)",
+           "pressure", required=False, positive=True),
+        _q("min_mass_ratio", "mu_min", "Least mass ratio, foundation to machine",
+           "dimensionless", default=DEFAULT_MIN_MASS_RATIO, positive=True, maximum=100.0,
+           default_note="common practice for rotating machines"),
+        _q("max_eccentricity", "e_max", "Largest offset of the combined centre of gravity,"
+           " fraction of the base dimension", "dimensionless",
+           default=DEFAULT_MAX_ECCENTRICITY, minimum=0.0, maximum=0.5,
+           default_note="common practice"),
+    )
+    sources = (RHW, LYSMER, ACI351, ISO21940)
+    verification_cases = (
+        VerificationCase(id="F1_circular_block_half_space_lumped_parameter",
+                         description="Circular plinth on a half-space (the method's"
+                         " constants)", source=_CASE_RHW, status="corroborated_secondary"),
+        VerificationCase(id="F2_rectangular_block_equivalent_radius_coupled_rocking",
+                         description="Rectangular block: equivalent radii, coupled sliding"
+                         " and rocking", source=_CASE_RHW, status="corroborated_secondary"),
+    )
+
+    def validate(self, inputs, given, criteria):
+        try:  # the method refuses what it cannot model (embedment too) and names the field
+            working.analysis(_method_inputs(inputs, given))
+        except FoundationError as exc:
+            return [(f"inputs.{exc.field}", exc.message)]
+        return []
+
+    def compute(self, ctx: CalcContext) -> CalcOutput:
+        p = _method_inputs(ctx.inputs, ctx.given)
+        a = working.analysis(p)
+        s = Sheet()
+        s.add(Assumptions(items=text.assumptions(False)),
+              Paragraph(title="Method", text=text.METHOD))
+        z_g = working.masses(s, p, a)
+        v = working.soil(s, p, ctx.given, a, z_g)
+        s.add(frequency_table(a))
+        working.response(s, p, ctx.given, a, v)
+        checks.write(s, ctx.criteria, frozenset(ctx.criteria_given), a)
+        band = ctx.criteria["min_frequency_separation"]
+        s.add(figures.response_chart(figures.response_curves(a, band=band), band),
+              figures.block_figure(figures.block_sketch(a)),
+              *(Caution(text=t) for t in text.CAUTIONS))
+        return s.output(purpose=self.purpose)
+
+    def verify(self, ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]:
+        return verification_rows(ctx, output)
+
+
+def _method_inputs(inputs, given) -> dict:
+    """The inputs as the method takes them: absent optional inputs left out, the force's
+    height defaulting to the machine's centre of gravity."""
+    p = {k: v for k, v in inputs.items() if v is not None}
+    for k in ("shear_modulus", "shear_wave_velocity", "unbalance", "balance_grade",
+              "rotor_mass", "force_amplitude", "force_height"):
+        if k not in given:
+            p.pop(k, None)
+    if "force_height" not in p:
+        p["force_height"] = p["machine_cg_height"]
+    return p
+
+
+def frequency_table(a) -> Table:
+    f_run = a.excitation.running_speed
+    rows = tuple((name, format_number(f, 4), format_number(f * 60.0, 4),
+                  format_number(100.0 * frequency_separation(f, f_run), 3))
+                 for name, f in a.natural_frequencies())
+    return Table(title=f"Natural frequencies against the running speed"
+                       f" ({format_number(f_run, 4)} Hz, {format_number(f_run * 60, 4)} rpm)",
+                 header=("Mode", "f [Hz]", "f [rpm]", "Separation from running speed [%]"),
+                 rows=rows)
+
+
+__all__ = ["RHW", "BlockFoundation"]
 
 
 @hookimpl
 def reportgen_register_calc_types(context):
-    return []
+    return [BlockFoundation()]
