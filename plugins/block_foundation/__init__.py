@@ -23,6 +23,7 @@ from reportgen.units import format_number
 
 from . import checks, figures, text, working
 from .errors import FoundationError
+from .excitation import BALANCE_GRADES_MM_S
 from .method import (
     DEFAULT_FREQUENCY_SEPARATION,
     DEFAULT_MAX_ECCENTRICITY,
@@ -103,8 +104,8 @@ class BlockFoundation(CalcType):
         _q("unbalance", "U", "Unbalance m·e", "mass_length", required=False, positive=True,
            maximum=1e3),
         InputSpec(name="balance_grade", symbol="G", description="Balance quality grade"
-                  " (ISO 21940-11), written \"G6.3\"", kind="text", required=False,
-                  max_length=12),
+                  " (ISO 21940-11), written \"G6.3\"", kind="choice", required=False,
+                  choices=tuple(f"G{g:g}" for g in BALANCE_GRADES_MM_S)),
         _q("rotor_mass", "m_r", "Rotor mass (with balance_grade)", "mass", required=False,
            positive=True, maximum=1e7),
         _q("force_amplitude", "F_0", "Force amplitude at the running speed (stated)", "force",
