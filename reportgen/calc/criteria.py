@@ -86,13 +86,15 @@ def load_criteria(plugins: Any, template_dir: Path | None = None,
     """Ask every plugin for its criteria (``context['template_dir']``: a firm's folder,
     where a plugin may find the firm's own curves). One plugin's failure is recorded as a
     problem, never hides the others'."""
-    from reportgen.calc.hookspecs import API_VERSION
-
     library = CriteriaLibrary()
     pm = getattr(plugins, "pm", None)
     if pm is not None:
-        context = {"api_version": API_VERSION, "template_dir": template_dir}
-        for impl in pm.hook.reportgen_register_criteria.get_hookimpls():
+        caller = pm.hook.reportgen_register_criteria
+        # the version from the hookspec module itself: importing it here would close a
+        # cycle (hookspecs -> types -> sheet, whose CalcContext carries the library)
+        api = getattr(caller.spec.namespace, "API_VERSION", None) if caller.spec else None
+        context = {"api_version": api, "template_dir": template_dir}
+        for impl in caller.get_hookimpls():
             package = plugins.packages.get(impl.plugin_name, ("?", "?"))[0]
             try:
                 kwargs = {"context": context}

@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from reportgen import formula as _formula
+from reportgen.calc.criteria import CriteriaLibrary
 from reportgen.calc.spec import DataFile
 from reportgen.model import (
     Block,
@@ -39,6 +40,10 @@ class CalcContext:
     units: str = "SI"
     #: the data files the job names ("file" inputs), by input name; read them, never write
     files: Mapping[str, DataFile] = field(default_factory=dict)
+    #: every criterion the plugins registered (and the firm's own, from its template
+    #: folder); look one up with ``ctx.criteria_library.get(name)``. It pickles, so a
+    #: verification run in a worker process sees the same library.
+    criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary)
 
     def file_hashes(self) -> dict[str, str]:
         """{input name: SHA-256} of the data files: what the files add to a cache key."""

@@ -15,7 +15,8 @@ from typing import IO, Any, Literal
 
 __all__ = ["Column", "DataFile", "InputSpec", "VerificationCase"]
 
-Kind = Literal["quantity", "integer", "pair", "points", "choice", "text", "table", "file"]
+Kind = Literal["quantity", "integer", "pair", "points", "choice", "text", "table", "file",
+               "criterion"]
 
 
 @dataclass(frozen=True, kw_only=True, slots=True)
@@ -51,7 +52,12 @@ class InputSpec:
       left out;
     - "file": a data file in the job's folder (one of ``formats``, by suffix); the calc
       gets a :class:`DataFile`, read-only; the file is hashed into the cache key and
-      embedded in the package, so ``reportgen verify`` recomputes from it.
+      embedded in the package, so ``reportgen verify`` recomputes from it;
+    - "criterion": the name of a criterion in the criteria library
+      (:mod:`reportgen.calc.criteria`), checked when the job is loaded (an unknown name is
+      refused with the nearest names); the calc gets the name as registered. With
+      ``columns`` the job may instead give its own curve as an array of tables, read like
+      a "table" input (the calc gets the tuple of rows).
     """
 
     name: str

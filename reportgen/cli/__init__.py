@@ -54,6 +54,13 @@ def _parser() -> argparse.ArgumentParser:
     pl = sub.add_parser("plugins", help="list calc types, their plugin package, version and inputs")
     common(pl)
 
+    cr = sub.add_parser("criteria", help="list the criteria calcs can cite by name, with"
+                        " their quantity and source")
+    cr.add_argument("--template-dir", type=Path, default=None,
+                    help="also list a firm's own criteria (its criteria/*.csv|*.toml)")
+    cr.add_argument("--json", action="store_true", help="print JSON")
+    common(cr)
+
     c = sub.add_parser("check", help="validate job files without building (exit 0 or 2)")
     c.add_argument("jobs", type=Path, nargs="+", help="job files or folders")
     common(c)
@@ -205,6 +212,10 @@ def _dispatch(args: argparse.Namespace) -> int:
         from reportgen.cli.commands import list_plugins
 
         return list_plugins()
+    if cmd == "criteria":
+        from reportgen.cli.criteria import criteria_command
+
+        return criteria_command(args.template_dir, args.json)
     if cmd == "check":
         from reportgen.cli.commands import check_jobs
 

@@ -83,7 +83,7 @@ def calc_context(spec: CalcSpec, units: str) -> CalcContext:
     return CalcContext(calc_id=spec.id, title=spec.title, inputs=dict(spec.inputs),
                        given=spec.given, criteria=dict(spec.criteria),
                        criteria_given=spec.criteria_given, units=units,
-                       files=dict(spec.files))
+                       files=dict(spec.files), criteria_library=spec.criteria_library)
 
 
 def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
@@ -174,7 +174,8 @@ def _input_tables(specs: tuple[InputSpec, ...], values: Mapping[str, Any]
     its column's display unit."""
     out = []
     for sp in specs:
-        if sp.kind != "table" or sp.name not in values:
+        if sp.name not in values or not (sp.kind == "table" or (
+                sp.kind == "criterion" and not isinstance(values[sp.name], str))):
             continue
         cols = sp.columns
         out.append(Table(
@@ -202,9 +203,9 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
         if named:
             source = named
-        if sp.kind == "table":
+        if sp.kind == "table" or (sp.kind == "criterion" and not isinstance(value, str)):
             continue  # a table of its own (_input_tables)
-        if sp.kind in ("choice", "text", "file"):
+        if sp.kind in ("choice", "text", "file", "criterion"):
             text = (f"{value.name} ({value.size} bytes, SHA-256 {value.sha256[:12]}…)"
                     if sp.kind == "file" else str(value))
             rows.append(InputRow(name=sp.name, symbol=sp.symbol, description=sp.description,

@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 from pathlib import Path, PurePosixPath
 from typing import Any
 
+from reportgen.calc.criteria import CriteriaLibrary, load_criteria
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem
@@ -101,6 +102,9 @@ class CalcSpec:
     sources: Mapping[str, str] = field(default_factory=dict)
     #: the inputs given with a range or a tolerance, by name (the nominal is in ``inputs``)
     spreads: Mapping[str, Spread] = field(default_factory=dict)
+    #: the criteria library of the job's build (the same object for every calc)
+    criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary,
+                                              compare=False, repr=False)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -123,6 +127,8 @@ class Job:
     previous_package: Path | None = None
     raw: Mapping[str, Any] = field(default_factory=dict)
     attachments: tuple[JobAttachment, ...] = ()
+    criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary,
+                                              compare=False, repr=False)
 
     @property
     def stem(self) -> str:
@@ -239,11 +245,13 @@ def parse_job_toml(fname: str, data_bytes: bytes) -> dict[str, Any]:
 
 
 def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = None,
-             archived: bool = False) -> Job:
+             archived: bool = False, template_dir: Path | None = None) -> Job:
     """Read, parse and validate a job file. Raises JobError with every problem.
 
     ``archived``: the job came out of a package to be recomputed; the previous package
     and the template folder it names need not exist (neither changes a result).
+    ``template_dir`` (``--template-dir``) overrides the job's own: the firm's criteria
+    files are read from it.
     """
     path = Path(path)
     fname = str(path)
@@ -260,7 +268,9 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         v.add("missing [package] table (title, job_number, calc_number, revision ...)",
               field="package")
         pkg = {}
-    info, history, template_dir, previous = v.package(pkg, path)
+    info, history, job_template, previous = v.package(pkg, path)
+    template_dir = template_dir or job_template
+    v.library = load_criteria(plugins, template_dir)
     attachments = v.attachments(pkg, path)
     calcs_raw = raw.get("calc", [])
     if not isinstance(calcs_raw, list) or not all(isinstance(c, dict) for c in calcs_raw):
@@ -283,8 +293,8 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         raise JobError(problems)
     assert info is not None
     return Job(path=path, source=data_bytes, info=info, revision_history=history,
-               calcs=tuple(calcs), template_dir=template_dir, previous_package=previous,
-               raw=raw, attachments=attachments)
+               calcs=tuple(calcs), template_dir=job_template, previous_package=previous,
+               raw=raw, attachments=attachments, criteria_library=v.library)
 
 
 def job_files(targets: list[Path]) -> list[Path]:
@@ -423,6 +433,7 @@ class _Validator:
         self._files: dict[str, DataFile] = {}  # the calc being read's data files
         self._sources: dict[str, str] = {}  # "inputs.mass" -> the source it names
         self._spreads: dict[str, Spread] = {}  # input -> its range or tolerance
+        self.library = CriteriaLibrary()
 
     def add(self, message: str, *, calc: str = "", field: str = "") -> None:
         self.problems.append(Problem(self.fname, message, calc, field))
@@ -685,7 +696,7 @@ class _Validator:
                         given=given, criteria=criteria, criteria_given=cgiven,
                         raw_inputs=dict(inputs_raw), raw_criteria=dict(criteria_raw),
                         files=dict(self._files), sources=dict(self._sources),
-                        spreads=dict(self._spreads))
+                        spreads=dict(self._spreads), criteria_library=self.library)
 
     def _values(self, raw: Mapping[str, Any], specs: tuple[InputSpec, ...], calc: str,
                 table: str) -> tuple[dict[str, Any], frozenset[str]]:
@@ -779,6 +790,8 @@ class _Validator:
             return self._table(raw, spec, calc, fld)
         if spec.kind == "file":
             return self._file(raw, spec, calc, fld)
+        if spec.kind == "criterion":
+            return self._criterion(raw, spec, calc, fld)
         try:
             if spec.kind in ("choice", "text"):
                 return _text_value(raw, spec)
@@ -850,6 +863,29 @@ class _Validator:
                     self.add(f"row {i}, column '{col.name}': {exc}", calc=calc, field=cell)
             rows.append(out)
         return tuple(rows) if len(self.problems) == before else None
+
+    def _criterion(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> Any:
+        """A criterion's name, checked against the library (the name as registered), or,
+        where the spec has columns, the job's own curve as a table."""
+        if spec.columns and isinstance(raw, list):
+            return self._table(raw, spec, calc, fld)
+        if not isinstance(raw, str) or not raw.strip() or text_problem(raw, spec.name):
+            own = (f", or a curve of your own as an array of tables with"
+                   f" {', '.join(c.name for c in spec.columns)}" if spec.columns else "")
+            example = _criterion_example(spec, self.library)
+            self.add(f"expected the name of a criterion such as \"{example}\"{own};"
+                     " `reportgen criteria` lists them", calc=calc, field=fld)
+            return None
+        for problem in self.library.problems:
+            self.add(f"the criteria library is incomplete: {problem}", calc=calc, field=fld)
+        found = self.library.get(raw)
+        if found is None:
+            near = self.library.nearest(raw)
+            hint = (f"; did you mean {' or '.join(repr(n) for n in near)}?" if near
+                    else "; `reportgen criteria` lists the known criteria")
+            self.add(f"unknown criterion {raw!r}{hint}", calc=calc, field=fld)
+            return None
+        return str(found.name)
 
     def _file(self, raw: Any, spec: InputSpec, calc: str, fld: str) -> DataFile | None:
         """A data file in the job's folder by the one safe-path rule, read once."""
@@ -931,6 +967,12 @@ def empty_date_allowed() -> bool:
     return not problems
 
 
+def _criterion_example(spec: InputSpec, library: CriteriaLibrary) -> str:
+    names = library.names()
+    return str(spec.default) if isinstance(spec.default, str) else (names[0] if names
+                                                                    else "VC-C")
+
+
 def _text_value(raw: Any, spec: InputSpec) -> str:
     if not isinstance(raw, str):
         raise UnitProblem(f"expected text, found {type(raw).__name__} {_short(raw)}"
@@ -972,6 +1014,8 @@ def _example(spec: InputSpec, n: int = 1) -> str:
     dim = DIMENSIONS[spec.dimension]
     if spec.kind == "integer":
         return "a whole number"
+    if spec.kind == "criterion":
+        return "the name of a criterion, which `reportgen criteria` lists"
     if dim.name == "dimensionless":
         return "a plain number"
     unit = dim.example.split()[0]

@@ -250,6 +250,12 @@ def _column_schema(col: Column) -> dict[str, Any]:
     return {**s, "description": col.description + unit}
 
 
+def _criterion_name(spec: InputSpec) -> dict[str, Any]:
+    # the names depend on the plugins and the firm's folder: checked when the job is loaded
+    return {"type": "string", "minLength": 1, "description": spec.description
+            + " (the name of a criterion; `reportgen criteria` lists them)"}
+
+
 def _value_schema(spec: InputSpec) -> dict[str, Any]:
     dim = DIMENSIONS[spec.dimension]
     if spec.kind == "choice":
@@ -265,12 +271,17 @@ def _value_schema(spec: InputSpec) -> dict[str, Any]:
         return {"type": "string", "description": spec.description + " (a file in the job's"
                 " folder, relative path)", **({"pattern": rf"(?i)({suffixes})$"}
                                               if suffixes else {})}
-    if spec.kind == "table":
-        return {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
-                "description": spec.description + " (an array of tables, one per row)",
-                "items": {"type": "object", "additionalProperties": False,
-                          "properties": {c.name: _column_schema(c) for c in spec.columns},
-                          "required": [c.name for c in spec.columns if c.required]}}
+    if spec.kind == "table" or (spec.kind == "criterion" and spec.columns):
+        table = {"type": "array", "minItems": spec.min_rows, "maxItems": spec.max_rows,
+                 "description": spec.description + " (an array of tables, one per row)",
+                 "items": {"type": "object", "additionalProperties": False,
+                           "properties": {c.name: _column_schema(c) for c in spec.columns},
+                           "required": [c.name for c in spec.columns if c.required]}}
+        if spec.kind == "table":
+            return table
+        return {"anyOf": [_criterion_name(spec), table], "description": spec.description}
+    if spec.kind == "criterion":
+        return _criterion_name(spec)
     if spec.kind == "integer":
         s: dict[str, Any] = {"type": "integer", **_number_range(spec)}
     elif spec.kind == "pair":
@@ -294,7 +305,7 @@ def _wrapped(spec: InputSpec, inputs: bool) -> dict[str, Any]:
     """An input's value, plain or as a table { value, source, tolerance }; a quantity
     input may carry a range or a tolerance in its text."""
     plain = _value_schema(spec)
-    if spec.kind == "table":
+    if spec.kind == "table" or (spec.kind == "criterion" and spec.columns):
         return plain
     values = [plain]
     spread = spec.kind == "quantity" and inputs and spec.rangeable

@@ -146,7 +146,7 @@ def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
                sched: Scheduler) -> Front:
     """Load the job, compute every calc once, apply the transforms, write the results and
     the HTML: everything before the layout."""
-    job = load_job(path, plugins)
+    job = load_job(path, plugins, template_dir=opts.template_dir)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
     if not opts.force:
