@@ -4,6 +4,8 @@ method, from a stated frequency and weight or from the bay's beams and girders.
 
 from __future__ import annotations
 
+from reportgen_plugins.vibration_criteria.library import BAND_VELOCITY, limit_at
+
 from reportgen import (
     Assumptions,
     CalcContext,
@@ -22,6 +24,7 @@ from reportgen.units import format_number
 
 from . import checks, figures, text, working
 from .bay import BEAM_COEFFICIENTS, GIRDER_COEFFICIENTS, bay_modes, bay_sketch
+from .equipment import EQUIPMENT_FREQUENCY_LIMIT, WALKING_PACES
 from .method import (
     DAMPING_DEFAULTS,
     LOW_FREQUENCY_LIMIT,
@@ -122,6 +125,12 @@ class FloorWalking(CalcType):
                   default="floor"),
         _q("max_acceleration_ratio", "A_0", "Stated tolerance a0/g (overrides the"
            " occupancy's)", "dimensionless", positive=True, maximum=1.0),
+        InputSpec(name="criterion", symbol="", description="Vibration criterion of sensitive"
+                  " equipment on the floor (a curve of the criteria library, e.g. VC-A)",
+                  kind="criterion", required=False),
+        InputSpec(name="walking_pace", symbol="", description="Walking pace near the"
+                  " equipment (slow 75, moderate 100, fast 125 steps/min)", kind="choice",
+                  choices=tuple(WALKING_PACES), default="moderate"),
     )
     criteria = ()
     sources = (DG11, ALLEN_MURRAY, ACI318, ISO2631, THOMSON_D)
@@ -161,9 +170,11 @@ class FloorWalking(CalcType):
             problems.append((f"inputs.{missing[0]}", "missing: " + ", ".join(missing) + (
                 "" if direct or bay else "; give natural_frequency and effective_weight, or"
                 " the bay's beams and girders")))
-        if not ({"occupancy", "max_acceleration_ratio"} & given):
+        comfort = bool({"occupancy", "max_acceleration_ratio"} & given)
+        if not comfort and "criterion" not in given:
             problems.append(("inputs.occupancy", "give an occupancy (one of "
-                             + ", ".join(OCCUPANCIES) + ") or max_acceleration_ratio"))
+                             + ", ".join(OCCUPANCIES) + ") or max_acceleration_ratio, or a"
+                             " criterion for sensitive equipment"))
         if problems:
             return problems
         if direct:
@@ -175,18 +186,21 @@ class FloorWalking(CalcType):
             except FloorMethodError as exc:
                 return [("inputs.beam_span", str(exc))]
             field, what = "inputs.girder_inertia", "the bay's natural frequency"
-        if f_n > LOW_FREQUENCY_LIMIT:
+        if comfort and f_n > LOW_FREQUENCY_LIMIT:
             problems.append((field, f"{what} {format_number(f_n, 4)} Hz "
                              + text.FREQUENCY_REFUSED.format(limit=format_number(
                                  LOW_FREQUENCY_LIMIT, 2))))
+        elif f_n > EQUIPMENT_FREQUENCY_LIMIT:
+            problems.append((field, f"{what} {format_number(f_n, 4)} Hz is above the"
+                             f" {format_number(EQUIPMENT_FREQUENCY_LIMIT, 2)} Hz limit of the"
+                             " sensitive-equipment method (criteria are stated from 1 to"
+                             " 80 Hz)"))
         return problems
 
     def compute(self, ctx: CalcContext) -> CalcOutput:
         p, given = ctx.inputs, ctx.given
         bay = "beam_span" in given
         beta, note = damping(p, given)
-        crit = walking_criterion(p.get("occupancy"), p.get("max_acceleration_ratio"),
-                                 p["structure"])
         s = Sheet()
         s.add(Assumptions(items=text.assumptions(bay, note)))
         if bay:
@@ -200,13 +214,19 @@ class FloorWalking(CalcType):
             weight = s.result("effective_weight", p["effective_weight"], "force", "W",
                               "Effective weight (stated)", key_result=True)
         s.result("damping_ratio", beta, "dimensionless", "beta", "Modal damping ratio")
-        s.result("excitation_force", crit.excitation_force, "force", "P_0",
-                 "Walking excitation force P0 (design guide Table 4-1)")
-        resp = working.walking(s, f_n, weight, beta, crit.excitation_force, crit.limit_ratio)
-        tol = tolerance_text(crit)
-        checks.write(s, resp, tol, modes)
-        s.add(figures.limit_chart(limit_curve(crit.limit_ratio, tol, point_frequency=f_n,
-                                              point_ratio=resp.peak_acceleration_ratio)))
+        if {"occupancy", "max_acceleration_ratio"} & given:
+            crit = walking_criterion(p.get("occupancy"), p.get("max_acceleration_ratio"),
+                                     p["structure"])
+            s.result("excitation_force", crit.excitation_force, "force", "P_0",
+                     "Walking excitation force P0 (design guide Table 4-1)")
+            resp = working.walking(s, f_n, weight, beta, crit.excitation_force,
+                                   crit.limit_ratio)
+            tol = tolerance_text(crit)
+            checks.write(s, resp, tol, modes)
+            s.add(figures.limit_chart(limit_curve(crit.limit_ratio, tol, point_frequency=f_n,
+                                                  point_ratio=resp.peak_acceleration_ratio)))
+        if "criterion" in given:
+            sensitive_equipment(s, ctx, f_n, weight, beta)
         if modes is not None:
             s.add(figures.bay_plan(bay_sketch(modes, beam_span=p["beam_span"],
                                               girder_span=p["girder_span"],
@@ -217,6 +237,24 @@ class FloorWalking(CalcType):
 
     def verify(self, ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]:
         return second_method(ctx, output)
+
+
+def sensitive_equipment(s: Sheet, ctx: CalcContext, f_n: float, weight: float,
+                        beta: float) -> None:
+    """The floor's velocity under a walker against the criterion read at f_n."""
+    name = ctx.inputs["criterion"]
+    curve = ctx.criteria_library.get(name)
+    if getattr(curve, "zones", ()) or getattr(curve, "quantity", "") != BAND_VELOCITY:
+        s.check("equipment", f"Sensitive equipment: criterion {name}", status="info",
+                note="not a one-third-octave band velocity curve, so not compared here")
+        return
+    v_crit = float(limit_at(curve, f_n))
+    resp = working.equipment(s, f_n, weight, beta, ctx.inputs["walking_pace"], name, v_crit)
+    s.check("equipment", f"Floor velocity under walking within the criterion {name}",
+            value=resp.velocity_rms, limit=v_crit, comparison="<=", dimension="velocity",
+            note=f"{curve.title}; read at {format_number(f_n, 3)} Hz; {resp.regime} response"
+                 f" at {format_number(resp.step_frequency * 60, 3)} steps/min")
+    s.add(Caution(text=text.CRITERION_CAUTION))
 
 
 def damping(p, given) -> tuple[float, str]:

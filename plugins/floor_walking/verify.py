@@ -239,24 +239,28 @@ def second_method(ctx, output) -> list:
     res = {row.key: row.quantity.value for row in output.results}
     p = ctx.inputs
     f_n, weight, beta = res["natural_frequency"], res["effective_weight"], res["damping_ratio"]
-    p0 = res["excitation_force"]
-    rows = [VerificationRow(
-        quantity="peak_acceleration_ratio", closed_form=res["peak_acceleration_ratio"],
-        independent=resonant_acceleration_ratio(
-            natural_frequency=f_n, effective_weight=weight, damping_ratio=beta,
-            walker_weight=p0, force_coefficient=1.0, reduction=1.0),
-        tolerance=1e-9, method="steady resonance of the modal oscillator (mass W/(2g),"
-        " damping ratio β) under P0·exp(−0.35 f_n) at f_n: scipy.signal.freqresp of"
-        " s²/(M s² + C s + K)")]
-    if p0 == 290.0:
+    rows = []
+    if "excitation_force" in res:
+        p0 = res["excitation_force"]
         rows.append(VerificationRow(
-            quantity="peak_acceleration_ratio (from the walker)",
-            closed_form=res["peak_acceleration_ratio"],
+            quantity="peak_acceleration_ratio", closed_form=res["peak_acceleration_ratio"],
             independent=resonant_acceleration_ratio(
-                natural_frequency=f_n, effective_weight=weight, damping_ratio=beta),
-            tolerance=2e-3, method="the same oscillator under R·α·P, α = 0.83·exp(−0.35 f),"
-            " P = 0.7 kN, R = 0.5 (the guide's derivation of P0; R·0.83·P = 0.2905 kN against"
-            " the tabulated 0.29 kN, hence the tolerance)"))
+                natural_frequency=f_n, effective_weight=weight, damping_ratio=beta,
+                walker_weight=p0, force_coefficient=1.0, reduction=1.0),
+            tolerance=1e-9, method="steady resonance of the modal oscillator (mass W/(2g),"
+            " damping ratio β) under P0·exp(−0.35 f_n) at f_n: scipy.signal.freqresp of"
+            " s²/(M s² + C s + K)"))
+        if p0 == 290.0:
+            rows.append(VerificationRow(
+                quantity="peak_acceleration_ratio (from the walker)",
+                closed_form=res["peak_acceleration_ratio"],
+                independent=resonant_acceleration_ratio(
+                    natural_frequency=f_n, effective_weight=weight, damping_ratio=beta),
+                tolerance=2e-3, method="the same oscillator under R·α·P, α = 0.83·exp(−0.35"
+                " f), P = 0.7 kN, R = 0.5 (the guide's derivation of P0; R·0.83·P = 0.2905 kN"
+                " against the tabulated 0.29 kN, hence the tolerance)"))
+    if "velocity_rms" in res:
+        rows.append(_equipment_row(res, f_n, weight, beta))
     if "beam_span" not in ctx.given:
         return rows
     w = p["dead_load"] + p["live_load_present"]
@@ -284,6 +288,31 @@ def second_method(ctx, output) -> list:
             " standing on a finite-element girder, repeated bays (the guide's combination is"
             " a Dunkerley-type estimate; agreement within 3 % expected)"))
     return rows
+
+
+def _equipment_row(res, f_n: float, weight: float, beta: float):
+    """The floor velocity by the modal oscillator: steady resonance (frequency response) or
+    the footstep's impulse response integrated over one step (scipy)."""
+    from reportgen import VerificationRow
+
+    f_s = res["step_frequency"]
+    if f_n <= 4 * f_s:  # a walking harmonic reaches f_n: resonant build-up
+        a = resonant_acceleration_ratio(natural_frequency=f_n, effective_weight=weight,
+                                        damping_ratio=beta, walker_weight=290.0,
+                                        force_coefficient=1.0, reduction=1.0) * STANDARD_GRAVITY
+        v = a / (2.0 * math.pi * f_n) / math.sqrt(2.0)
+        return VerificationRow(
+            quantity="velocity_rms", closed_form=res["velocity_rms"], independent=v,
+            tolerance=1e-9, unit="velocity", method="steady resonance of the modal oscillator"
+            " under P0·exp(−0.35 f_n), P0 = 0.29 kN (scipy.signal.freqresp), in velocity")
+    impulse = f_s**1.43 / f_n**1.30 * 747.3 / 17.8  # the footstep's effective impulse
+    v = footstep_velocity_rms(natural_frequency=f_n, effective_weight=weight,
+                              damping_ratio=beta, impulse=impulse, step_frequency=f_s)
+    return VerificationRow(
+        quantity="velocity_rms", closed_form=res["velocity_rms"], independent=v,
+        tolerance=5e-3, unit="velocity", method="impulse response of the modal oscillator"
+        " (scipy.signal.impulse) squared and integrated over one step period (Simpson); the"
+        " closed form is the light-damping approximation of the decaying sinusoid")
 
 
 def _symbols(output) -> set[str]:

@@ -21,7 +21,13 @@ from .bay import (
     bay_modes,
     dynamic_modular_ratio,
 )
-from .method import FORCE_DECAY, WalkingResponse, walking_response
+from .equipment import (
+    IMPULSE_BODY_WEIGHT,
+    IMPULSE_DIVISOR,
+    EquipmentResponse,
+    equipment_response,
+)
+from .method import FLOOR_EXCITATION, FORCE_DECAY, WalkingResponse, walking_response
 
 #: Printed and method values must agree to this relative difference (both are float64).
 _AGREE = 1e-9
@@ -171,4 +177,50 @@ def walking(s: Sheet, f_n: float, weight: float, beta: float, p0: float,
     _agree(ratio, resp.peak_acceleration_ratio, "a_p/g")
     _agree(a_p, resp.peak_acceleration, "a_p")
     _agree(rl, resp.ratio_to_limit, "ratio to limit")
+    return resp
+
+
+def equipment(s: Sheet, f_n: float, weight: float, beta: float, pace: str, name: str,
+              v_crit: float) -> EquipmentResponse:
+    """The sensitive-equipment check as printed (the guide's Ch. 6 approach through the
+    floor's modal oscillator), and the method's evaluation of it."""
+    resp = equipment_response(natural_frequency=f_n, effective_weight=weight,
+                              damping_ratio=beta, walking_pace=pace,
+                              criterion_velocity=v_crit)
+    s.add(Paragraph(title="Sensitive equipment: floor velocity under a walker",
+                    text=" ".join(resp.limits)))
+    g = STANDARD_GRAVITY
+    m = s.equation("M", "W/(2*g_n)", "mass", W=weight, g_n=g, key="modal_mass",
+                   description="Modal mass of the floor's fundamental mode")
+    f_s = s.result("step_frequency", resp.step_frequency, "frequency", "f_s",
+                   f"Footstep frequency ({pace} walking)")
+    if resp.regime == "resonant":
+        a_e = s.equation("a_e", f"P_0*exp(-{FORCE_DECAY}*f_n)*g_n/(beta*W)", "acceleration",
+                         P_0=FLOOR_EXCITATION, f_n=f_n, g_n=g, beta=beta, W=weight,
+                         description="Steady resonant acceleration under walking (the guide's"
+                                     " walking equation, P0 = 0.29 kN)")
+        v_p = s.equation("v_p", "a_e/(2*pi*f_n)", "velocity", a_e=a_e, f_n=f_n,
+                         description="Peak velocity of the resonant response")
+        v = s.equation("v_rms", "v_p/sqrt(2)", "velocity", v_p=v_p, key="velocity_rms",
+                       key_result=True, description="rms velocity of the floor")
+    else:
+        i_eff = s.equation("I_eff", f"f_s**1.43/f_n**1.30*Q/{IMPULSE_DIVISOR}",
+                           f_s=f_s, f_n=f_n, Q=IMPULSE_BODY_WEIGHT,
+                           description="Effective footstep impulse (N·s; frequencies in Hz,"
+                                       " Q = 747 N)")
+        v_p = s.equation("v_p", "I_eff/M", "velocity", I_eff=i_eff, M=m,
+                         description="Peak velocity after one footstep")
+        h = s.equation("h", "f_n/f_s", f_n=f_n, f_s=f_s,
+                       description="Cycles of the floor per footstep")
+        v = s.equation("v_rms", "v_p/sqrt(2)*sqrt((1 - exp(-4*pi*beta*h))/(4*pi*beta*h))",
+                       "velocity", v_p=v_p, beta=beta, h=h, key="velocity_rms",
+                       key_result=True, description="rms velocity over one step period")
+    s.result("criterion_velocity", v_crit, "velocity", "V_c",
+             f"Criterion {name} at the floor's frequency (one-third-octave band rms)",
+             key_result=True)
+    ratio = s.equation("R_v", "v_rms/V_c", v_rms=v, V_c=v_crit,
+                       key="velocity_ratio_to_limit", key_result=True,
+                       description="Ratio of the floor velocity to the criterion")
+    _agree(v, resp.velocity_rms, "floor velocity")
+    _agree(ratio, resp.ratio_to_limit, "velocity ratio")
     return resp
