@@ -186,3 +186,18 @@ def test_bad_input_exits_2_naming_file_calc_and_field(tmp_path, capsys, change, 
     assert "block.toml" in err and "k9" in err and words in line, err
     assert "Traceback" not in err
     assert not out.exists() or not any(out.iterdir())
+
+
+@pytest.mark.parametrize("criteria", [None, {"max_amplitude": "20 um", "limit_measure": "rms",
+                                             "allowable_bearing_pressure": "100 kPa"}])
+def test_calc_contract(tmp_path, criteria):
+    # the plugin kit's contract: symbols and dimensions declared, every printed equation
+    # reproduces its printed result, the second method agrees, the section renders
+    from reportgen_plugins.block_foundation import BlockFoundation
+
+    from reportgen.testing import assert_calc_contract
+
+    calc = {"inputs": {**F2_JOB, "machine_cg_x": "0.3 m"}}
+    if criteria:
+        calc["criteria"] = criteria
+    assert_calc_contract(BlockFoundation(), calc, tmp_path, pdf=False)

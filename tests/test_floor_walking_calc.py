@@ -248,3 +248,14 @@ def test_bad_input_exits_2_naming_file_calc_and_field(tmp_path, capsys, inputs, 
     assert "Traceback" not in err
     assert not out.exists() or not any(out.iterdir())
 
+
+
+@pytest.mark.parametrize("inputs", [CALCS["i2"], CALCS["i6-10mm"], CALCS["lab"]])
+def test_calc_contract(tmp_path, inputs):
+    # the plugin kit's contract: symbols and dimensions declared, every printed equation
+    # reproduces its printed result, the second method agrees, the section renders
+    from reportgen_plugins.floor_walking import FloorWalking
+
+    from reportgen.testing import assert_calc_contract
+
+    assert_calc_contract(FloorWalking(), {"inputs": inputs}, tmp_path, pdf=False)

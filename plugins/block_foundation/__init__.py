@@ -112,7 +112,7 @@ class BlockFoundation(CalcType):
            required=False, positive=True, maximum=1e9),
         _q("force_height", "h_F", "Height of the force above the base", "length",
            required=False, minimum=0.0, maximum=50.0),
-        InputSpec(name="shaft_axis", symbol="", description="Direction of the shaft (the"
+        InputSpec(name="shaft_axis", symbol="shaft", description="Direction of the shaft (the"
                   " horizontal force is perpendicular to it)", kind="choice",
                   choices=SHAFT_AXES, default="y"),
     )
@@ -125,7 +125,7 @@ class BlockFoundation(CalcType):
            required=False, positive=True),
         _q("max_velocity", "v_lim", "Largest vibration velocity at the machine", "velocity",
            required=False, positive=True),
-        InputSpec(name="limit_measure", symbol="", description="How max_amplitude and"
+        InputSpec(name="limit_measure", symbol="meas", description="How max_amplitude and"
                   " max_velocity are stated", kind="choice",
                   choices=("peak", "rms", "peak_to_peak"), default="peak"),
         _q("allowable_bearing_pressure", "q_a", "Allowable bearing pressure (geotechnical)",

@@ -102,33 +102,33 @@ class FloorWalking(CalcType):
            "pressure", positive=True, maximum=2e8),
         _q("modular_ratio", "n", "Dynamic modular ratio E_s/(1.35·E_c)", "dimensionless",
            positive=True, maximum=100.0),
-        InputSpec(name="bay_position", symbol="", description="Position of the bay: interior,"
+        InputSpec(name="bay_position", symbol="pos", description="Position of the bay: interior,"
                   " or along a free edge parallel to the beams", kind="choice",
                   choices=tuple(BEAM_COEFFICIENTS), default="interior"),
-        InputSpec(name="girder_connection", symbol="", description="Beams framed into the"
+        InputSpec(name="girder_connection", symbol="conn", description="Beams framed into the"
                   " girder web, or seated on its flange", kind="choice",
                   choices=tuple(GIRDER_COEFFICIENTS), default="web"),
         _q("floor_width", "B_floor", "Extent of the floor across the beams (limits B_j to ⅔"
            " of it)", "length", positive=True, maximum=1000.0),
         _q("floor_length", "L_floor", "Extent of the floor along the beams (limits B_g to ⅔"
            " of it)", "length", positive=True, maximum=1000.0),
-        InputSpec(name="fit_out", symbol="", description="Fit-out that sets the recommended"
+        InputSpec(name="fit_out", symbol="fit", description="Fit-out that sets the recommended"
                   " damping ratio", kind="choice", choices=tuple(DAMPING_DEFAULTS),
                   default="furnished", default_note="confirm the fit-out in service"),
         _q("damping_ratio", "beta", "Modal damping ratio (overrides the fit-out's value)",
            "dimensionless", positive=True, maximum=0.2),
-        InputSpec(name="occupancy", symbol="", description="Occupancy that sets the tolerance"
+        InputSpec(name="occupancy", symbol="occ", description="Occupancy that sets the tolerance"
                   " a0/g and the excitation P0", kind="choice", choices=tuple(OCCUPANCIES),
                   required=False),
-        InputSpec(name="structure", symbol="", description="Floor or footbridge (sets P0 when"
+        InputSpec(name="structure", symbol="kind", description="Floor or footbridge (sets P0 when"
                   " no occupancy is named)", kind="choice", choices=("floor", "footbridge"),
                   default="floor"),
         _q("max_acceleration_ratio", "A_0", "Stated tolerance a0/g (overrides the"
            " occupancy's)", "dimensionless", positive=True, maximum=1.0),
-        InputSpec(name="criterion", symbol="", description="Vibration criterion of sensitive"
+        InputSpec(name="criterion", symbol="crit", description="Vibration criterion of sensitive"
                   " equipment on the floor (a curve of the criteria library, e.g. VC-A)",
                   kind="criterion", required=False),
-        InputSpec(name="walking_pace", symbol="", description="Walking pace near the"
+        InputSpec(name="walking_pace", symbol="pace", description="Walking pace near the"
                   " equipment (slow 75, moderate 100, fast 125 steps/min)", kind="choice",
                   choices=tuple(WALKING_PACES), default="moderate"),
     )
