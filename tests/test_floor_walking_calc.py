@@ -259,3 +259,16 @@ def test_calc_contract(tmp_path, inputs):
     from reportgen.testing import assert_calc_contract
 
     assert_calc_contract(FloorWalking(), {"inputs": inputs}, tmp_path, pdf=False)
+
+
+def test_a_stated_tolerance_among_the_criteria(check_cases):
+    # case I1 with a0/g written as a criterion instead of an occupancy: the same a_p/g
+    # (DG11 Eq. 4-1; P0 falls back to the floor's 0.29 kN)
+    from reportgen.testing import compute_calc, result
+
+    doc = compute_calc("floor_walking", {"natural_frequency": "5 Hz",
+                                         "effective_weight": "250 kN", "damping_ratio": 0.03},
+                       {"max_acceleration_ratio": 0.005})
+    case = check_cases["I1_dg11_office_fails"]
+    assert_case(result(doc, "peak_acceleration_ratio"), case, "ap_over_g")
+    assert_case(result(doc, "ratio_to_limit"), case, "ratio_to_limit")

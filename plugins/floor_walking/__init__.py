@@ -132,7 +132,11 @@ class FloorWalking(CalcType):
                   " equipment (slow 75, moderate 100, fast 125 steps/min)", kind="choice",
                   choices=tuple(WALKING_PACES), default="moderate"),
     )
-    criteria = ()
+    #: the tolerance may also be written among the criteria (it is one)
+    criteria = (
+        _q("max_acceleration_ratio", "A_0", "Stated tolerance a0/g (overrides the"
+           " occupancy's)", "dimensionless", positive=True, maximum=1.0),
+    )
     sources = (DG11, ALLEN_MURRAY, ACI318, ISO2631, THOMSON_D)
     verification_cases = (
         *(VerificationCase(id=i, description=d, source=_CASE_DG11,
@@ -170,6 +174,11 @@ class FloorWalking(CalcType):
             problems.append((f"inputs.{missing[0]}", "missing: " + ", ".join(missing) + (
                 "" if direct or bay else "; give natural_frequency and effective_weight, or"
                 " the bay's beams and girders")))
+        if "max_acceleration_ratio" in criteria and "max_acceleration_ratio" in given:
+            return [("criteria.max_acceleration_ratio", "give max_acceleration_ratio once,"
+                     " among the inputs or among the criteria")]
+        if "max_acceleration_ratio" in criteria:
+            inputs, given = _with_limit(inputs, given, criteria)
         comfort = bool({"occupancy", "max_acceleration_ratio"} & given)
         if not comfort and "criterion" not in given:
             problems.append(("inputs.occupancy", "give an occupancy (one of "
@@ -198,7 +207,7 @@ class FloorWalking(CalcType):
         return problems
 
     def compute(self, ctx: CalcContext) -> CalcOutput:
-        p, given = ctx.inputs, ctx.given
+        p, given = _with_limit(ctx.inputs, ctx.given, ctx.criteria)
         bay = "beam_span" in given
         beta, note = damping(p, given)
         s = Sheet()
@@ -237,6 +246,14 @@ class FloorWalking(CalcType):
 
     def verify(self, ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]:
         return second_method(ctx, output)
+
+
+def _with_limit(inputs, given, criteria):
+    """The inputs with a tolerance written among the criteria moved in with them."""
+    if "max_acceleration_ratio" not in criteria:
+        return inputs, given
+    return ({**inputs, "max_acceleration_ratio": criteria["max_acceleration_ratio"]},
+            frozenset(given) | {"max_acceleration_ratio"})
 
 
 def sensitive_equipment(s: Sheet, ctx: CalcContext, f_n: float, weight: float,
