@@ -87,27 +87,26 @@ class FloorWalking(CalcType):
         _q("girder_span", "L_g", "Girder span", "length", positive=True, maximum=100.0),
         _q("girder_inertia", "I_g", "Girder moment of inertia (effective composite)",
            "second_moment_of_area", positive=True, maximum=10.0),
-        _q("elastic_modulus", "E_s", "Elastic modulus of the steel", "pressure",
-           default=200e9, positive=True, maximum=1e12,
-           default_note="structural steel, 200 GPa"),
+        _q("elastic_modulus", "E_s", "Elastic modulus of the steel (bay route; 200 GPa if not"
+           " stated)", "pressure", positive=True, maximum=1e12),
         _q("dead_load", "D", "Dead load per unit area, including slab and self weight",
            "pressure", positive=True, maximum=1e6),
         _q("live_load_present", "L_p", "Part of the live load present in service",
            "pressure", minimum=0.0, maximum=1e6),
         _q("slab_depth", "d_e", "Effective slab depth", "length", positive=True, maximum=2.0),
-        _q("concrete_density", "rho_c", "Density of the slab's concrete", "density",
-           default=2400.0, minimum=1440.0, maximum=2560.0,
-           default_note="normal-weight concrete"),
+        _q("concrete_density", "rho_c", "Density of the slab's concrete (with"
+           " concrete_strength; 2400 kg/m³ if not stated)", "density", minimum=1440.0,
+           maximum=2560.0),
         _q("concrete_strength", "f_c", "Specified compressive strength of the concrete",
            "pressure", positive=True, maximum=2e8),
         _q("modular_ratio", "n", "Dynamic modular ratio E_s/(1.35·E_c)", "dimensionless",
            positive=True, maximum=100.0),
         InputSpec(name="bay_position", symbol="pos", description="Position of the bay: interior,"
-                  " or along a free edge parallel to the beams", kind="choice",
-                  choices=tuple(BEAM_COEFFICIENTS), default="interior"),
+                  " or along a free edge parallel to the beams (interior if not stated)",
+                  kind="choice", choices=tuple(BEAM_COEFFICIENTS), required=False),
         InputSpec(name="girder_connection", symbol="conn", description="Beams framed into the"
-                  " girder web, or seated on its flange", kind="choice",
-                  choices=tuple(GIRDER_COEFFICIENTS), default="web"),
+                  " girder web, or seated on its flange (web if not stated)", kind="choice",
+                  choices=tuple(GIRDER_COEFFICIENTS), required=False),
         _q("floor_width", "B_floor", "Extent of the floor across the beams (limits B_j to ⅔"
            " of it)", "length", positive=True, maximum=1000.0),
         _q("floor_length", "L_floor", "Extent of the floor along the beams (limits B_g to ⅔"
@@ -121,16 +120,16 @@ class FloorWalking(CalcType):
                   " a0/g and the excitation P0", kind="choice", choices=tuple(OCCUPANCIES),
                   required=False),
         InputSpec(name="structure", symbol="kind", description="Floor or footbridge (sets P0 when"
-                  " no occupancy is named)", kind="choice", choices=("floor", "footbridge"),
-                  default="floor"),
+                  " no occupancy is named; floor if not stated)", kind="choice",
+                  choices=("floor", "footbridge"), required=False),
         _q("max_acceleration_ratio", "A_0", "Stated tolerance a0/g (overrides the"
            " occupancy's)", "dimensionless", positive=True, maximum=1.0),
         InputSpec(name="criterion", symbol="crit", description="Vibration criterion of sensitive"
                   " equipment on the floor (a curve of the criteria library, e.g. VC-A)",
                   kind="criterion", required=False),
         InputSpec(name="walking_pace", symbol="pace", description="Walking pace near the"
-                  " equipment (slow 75, moderate 100, fast 125 steps/min)", kind="choice",
-                  choices=tuple(WALKING_PACES), default="moderate"),
+                  " equipment (slow 75, moderate 100, fast 125 steps/min; moderate if not"
+                  " stated)", kind="choice", choices=tuple(WALKING_PACES), required=False),
     )
     #: the tolerance may also be written among the criteria (it is one)
     criteria = (
@@ -179,6 +178,7 @@ class FloorWalking(CalcType):
                      " among the inputs or among the criteria")]
         if "max_acceleration_ratio" in criteria:
             inputs, given = _with_limit(inputs, given, criteria)
+        inputs = _with_defaults(inputs)
         comfort = bool({"occupancy", "max_acceleration_ratio"} & given)
         if not comfort and "criterion" not in given:
             problems.append(("inputs.occupancy", "give an occupancy (one of "
@@ -208,6 +208,7 @@ class FloorWalking(CalcType):
 
     def compute(self, ctx: CalcContext) -> CalcOutput:
         p, given = _with_limit(ctx.inputs, ctx.given, ctx.criteria)
+        p = _with_defaults(p)
         bay = "beam_span" in given
         beta, note = damping(p, given)
         s = Sheet()
@@ -248,6 +249,17 @@ class FloorWalking(CalcType):
         return second_method(ctx, output)
 
 
+#: What an absent optional input stands for (left out of the inputs table when it is not
+#: given, since most of them belong to one route only).
+ROUTE_DEFAULTS = {"elastic_modulus": 200e9, "concrete_density": 2400.0,
+                  "bay_position": "interior", "girder_connection": "web",
+                  "structure": "floor", "walking_pace": "moderate"}
+
+
+def _with_defaults(inputs):
+    return {**ROUTE_DEFAULTS, **{k: v for k, v in inputs.items() if v is not None}}
+
+
 def _with_limit(inputs, given, criteria):
     """The inputs with a tolerance written among the criteria moved in with them."""
     if "max_acceleration_ratio" not in criteria:
@@ -266,7 +278,8 @@ def sensitive_equipment(s: Sheet, ctx: CalcContext, f_n: float, weight: float,
                 note="not a one-third-octave band velocity curve, so not compared here")
         return
     v_crit = float(limit_at(curve, f_n))
-    resp = working.equipment(s, f_n, weight, beta, ctx.inputs["walking_pace"], name, v_crit)
+    pace = ctx.inputs.get("walking_pace") or ROUTE_DEFAULTS["walking_pace"]
+    resp = working.equipment(s, f_n, weight, beta, pace, name, v_crit)
     s.check("equipment", f"Floor velocity under walking within the criterion {name}",
             value=resp.velocity_rms, limit=v_crit, comparison="<=", dimension="velocity",
             note=f"{curve.title}; read at {format_number(f_n, 3)} Hz; {resp.regime} response"

@@ -266,10 +266,10 @@ def second_method(ctx, output) -> list:
     w = p["dead_load"] + p["live_load_present"]
     bay = dict(beam_span=p["beam_span"], beam_spacing=p["beam_spacing"],
                beam_inertia=p["beam_inertia"], girder_span=p["girder_span"],
-               girder_inertia=p["girder_inertia"], elastic_modulus=p["elastic_modulus"])
-    f_j = member_frequency(w * p["beam_spacing"], p["beam_span"], p["elastic_modulus"],
+               girder_inertia=p["girder_inertia"], elastic_modulus=res["elastic_modulus"])
+    f_j = member_frequency(w * p["beam_spacing"], p["beam_span"], res["elastic_modulus"],
                            p["beam_inertia"])
-    f_g = member_frequency(w * p["beam_span"], p["girder_span"], p["elastic_modulus"],
+    f_g = member_frequency(w * p["beam_span"], p["girder_span"], res["elastic_modulus"],
                            p["girder_inertia"])
     fe = "finite elements (40 Hermite beam elements, consistent mass w/g, scipy.linalg.eigh)"
     rows += [

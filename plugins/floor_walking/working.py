@@ -64,6 +64,9 @@ def bay(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> BayModes:
     s.add(Paragraph(title="Natural frequency and effective weight of the bay",
                     text=text.BAY_METHOD))
     g, e_s = STANDARD_GRAVITY, p["elastic_modulus"]
+    s.result("elastic_modulus", e_s, "pressure", "E_s", "Elastic modulus of the steel"
+             + (" (stated)" if "elastic_modulus" in given else " (structural steel, 200 GPa,"
+                " not stated)"))
     l_j, s_j, l_g = p["beam_span"], p["beam_spacing"], p["girder_span"]
     w = s.equation("w", "D + L_p", "pressure", D=p["dead_load"], L_p=p["live_load_present"],
                    description="Supported load per unit area in service (dead load and the"
