@@ -243,7 +243,10 @@ class FloorWalking(CalcType):
                                               beam_spacing=p["beam_spacing"]),
                                    p["bay_position"]))
         s.add(*(Caution(text=t) for t in text.CAUTIONS))
-        return s.output(purpose=self.purpose)
+        purpose = self.purpose if {"occupancy", "max_acceleration_ratio"} & given else ""
+        if "criterion" in given:
+            purpose += (" " if purpose else "") + text.EQUIPMENT_PURPOSE
+        return s.output(purpose=purpose)
 
     def verify(self, ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]:
         return second_method(ctx, output)

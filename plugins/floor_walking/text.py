@@ -78,6 +78,9 @@ CAUTIONS = (
     " separate checks with their own excitation and criteria.",
 )
 
+EQUIPMENT_PURPOSE = ("Predict the floor's vibration velocity under a person walking near the"
+                     " sensitive equipment and compare it with the equipment's criterion.")
+
 CRITERION_CAUTION = (
     "Sensitive equipment: the prediction rests on estimated floor properties; confirm the"
     " instrument maker's stated floor criterion, and measure the built floor where the"
