@@ -140,9 +140,6 @@ class BlockFoundation(CalcType):
     )
     sources = (RHW, LYSMER, ACI351, ISO21940)
     verification_cases = (
-        VerificationCase(id="F1_circular_block_half_space_lumped_parameter",
-                         description="Circular plinth on a half-space (the method's"
-                         " constants)", source=_CASE_RHW, status="corroborated_secondary"),
         VerificationCase(id="F2_rectangular_block_equivalent_radius_coupled_rocking",
                          description="Rectangular block: equivalent radii, coupled sliding"
                          " and rocking", source=_CASE_RHW, status="corroborated_secondary"),

@@ -24,7 +24,8 @@ from reportgen.units import STANDARD_GRAVITY
 G = STANDARD_GRAVITY
 SAMPLES = REPO / "sample_jobs"
 CASES = json.loads((REPO / "tests" / "data" / "check_cases_wave2.json").read_text("utf-8"))
-F2 = next(c for c in CASES["cases"] if c["id"].startswith("F2_"))
+F2 = next(c for c in CASES["cases"]
+          if c["id"] == "F2_rectangular_block_equivalent_radius_coupled_rocking")
 
 F2_JOB = {
     "block_length": "5.0 m", "block_width": "3.2 m", "block_height": "1.6 m",
