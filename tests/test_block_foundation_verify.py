@@ -47,8 +47,9 @@ def test_second_method_imports_nothing_of_the_method():
 
 
 def test_method_does_not_import_the_second_method():
+    # only the calc type (__init__.py) calls the second method, to fill the verification
     for path in FOLDER.glob("*.py"):
-        if path.name != "verify.py":
+        if path.name not in ("verify.py", "__init__.py"):
             assert not any("verify" in n for n in _imports(path)), path.name
 
 

@@ -1,12 +1,16 @@
-"""The data behind the block-foundation figures: amplitude against running speed with the
-separation band, and the numbers a sketch of the block needs. Arrays only, no drawing.
+"""The block-foundation figures: amplitude against running speed with the separation band,
+and the block with its centres of gravity and equivalent radii (data, then the Figure blocks).
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
+
+from reportgen import Band, Figure, Marker, Panel, Series
+from reportgen.units import format_number
 
 from .method import DEFAULT_FREQUENCY_SEPARATION, FoundationAnalysis, separation_band
 
@@ -81,3 +85,73 @@ def block_sketch(analysis: FoundationAnalysis) -> BlockSketch:
         combined_cg=(p.x, p.y, p.z), force_height=analysis.force_height,
         shaft_axis=analysis.shaft_axis, radius_translation=r.translation,
         radius_rocking_x=r.rocking_x, radius_rocking_y=r.rocking_y, radius_torsion=r.torsion)
+
+
+# ------------------------------------------------------------------ the drawings
+
+def _v(values) -> tuple[float, ...]:
+    return tuple(float(v) for v in values)
+
+
+def response_chart(c: ResponseCurves, band: float) -> Figure:
+    """Amplitude against running speed, vertical and coupled, with the separation band."""
+    um = 1e6
+    f = c.frequency
+    run = Marker(x=c.running_speed, label=f"running speed {format_number(c.running_speed, 4)}"
+                                          " Hz")
+    pct = format_number(100 * band, 3)
+    bands = (Band(x_low=c.band[0], x_high=c.band[1], label=f"±{pct} % of the running speed"),)
+    vertical = Panel(
+        series=(Series(x=_v(f), y=_v(c.vertical_amplitude * um), label="vertical",
+                       emphasis=True),),
+        y_label="Vertical amplitude [µm]", bands=bands,
+        markers=(run, Marker(x=c.vertical_natural_frequency, label="f_z")))
+    coupled = Panel(
+        series=(Series(x=_v(f), y=_v(c.horizontal_amplitude_top * um),
+                       label="horizontal, top of block", emphasis=True),
+                Series(x=_v(f), y=_v(c.horizontal_amplitude_at_force * um),
+                       label="horizontal, at the force's height", style="dashed")),
+        y_label="Horizontal amplitude [µm]", bands=bands,
+        markers=(run, Marker(x=c.coupled_frequencies[0], label="f_1"),
+                 Marker(x=c.coupled_frequencies[1], label="f_2")))
+    return Figure(
+        key="foundation-response",
+        caption="Zero-to-peak amplitude against running speed under the machine's force"
+                " (the force follows the speed for an unbalance, constant if stated), with"
+                " the separation band around the running speed and the natural frequencies",
+        alt="Two panels of amplitude against speed, vertical and horizontal, each with a"
+            " resonance peak and the running speed marked",
+        x_label="Running speed [Hz]", x_range=(0.0, float(f[-1])), panels=(vertical, coupled))
+
+
+def block_figure(sk: BlockSketch) -> Figure:
+    """The block in elevation (x, z) and in plan (x, y) with the equivalent circles."""
+    half_l, half_b = sk.length / 2.0, sk.width / 2.0
+    elev = (Series(x=(-half_l, half_l, half_l, -half_l, -half_l),
+                   y=(0.0, 0.0, sk.height, sk.height, 0.0), label="block", emphasis=True),
+            Series(x=(sk.machine_cg[0],), y=(sk.machine_cg[2],), style="points",
+                   label="machine's centre of gravity"),
+            Series(x=(sk.combined_cg[0],), y=(sk.combined_cg[2],), style="points",
+                   label="combined centre of gravity"),
+            Series(x=(-half_l, half_l), y=(sk.force_height, sk.force_height), style="dotted",
+                   label=f"force height {format_number(sk.force_height, 3)} m"))
+    t = [2 * math.pi * i / 72 for i in range(73)]
+    circles = [Series(x=(-half_l, half_l, half_l, -half_l, -half_l),
+                      y=(-half_b, -half_b, half_b, half_b, -half_b), label="base",
+                      emphasis=True)]
+    for r, name, style in ((sk.radius_translation, "r_z (vertical, horizontal)", "dashed"),
+                           (sk.radius_torsion, "r_t (torsion)", "dotted")):
+        circles.append(Series(x=_v(r * math.cos(a) for a in t), y=_v(r * math.sin(a) for a in t),
+                              label=f"{name} = {format_number(r, 3)} m", style=style))
+    return Figure(
+        key="foundation-block",
+        caption="The block in elevation and in plan: centres of gravity, the height of the"
+                " force, and the equivalent circles of the base (rocking radii: about x"
+                f" {format_number(sk.radius_rocking_x, 3)} m, about y"
+                f" {format_number(sk.radius_rocking_y, 3)} m). Axes in metres.",
+        alt="Elevation of the block with the centres of gravity, and plan of the base with"
+            " its equivalent circles",
+        x_label="x, along the block's length [m]",
+        panels=(Panel(series=elev, y_label="z, height above the base [m]",
+                      markers=(Marker(x=0.0, label="centre of the base"),)),
+                Panel(series=tuple(circles), y_label="y, across the block [m]")))

@@ -190,3 +190,4 @@ def second_method(
     }
     return SecondMethod(values=values, frequencies=tuple(float(f) for f in freqs),
                         mode_labels=labels)
+

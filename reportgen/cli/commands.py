@@ -40,6 +40,7 @@ def list_plugins() -> int:
                 need = "required" if sp.required and sp.default is None else (
                     f"default {sp.default!r}" if isinstance(sp.default, str) else
                     f"default {sp.default:g}{' ' + dim.si_label if dim.si_label else ''}"
+                    if isinstance(sp.default, (int, float)) else f"default {sp.default}"
                     if sp.default is not None else "optional")
                 print(f"      {sp.name:<24}{sp.description}{unit}; {need}")
     for b in plugins.broken:
