@@ -21,6 +21,10 @@ def _raw(value: Any) -> Any:
     return value.get("value") if isinstance(value, dict) else value
 
 
+def _source(raw: Any) -> str:
+    return str(raw.get("source") or "job file") if isinstance(raw, dict) else "job file"
+
+
 def _input_cell(raw: Any, dimension: str | None) -> Any:
     raw = _raw(raw)
     if raw is None:
@@ -69,9 +73,13 @@ def change_table(ch: Changes, doc: Document) -> Table:
         dim = spec.quantity.dimension if spec is not None and spec.quantity else None
         if table == "criteria":
             words = f"Criterion: {words}"
-        rows.append((s.number if s else "—", words, _input_cell(old_raw, dim),
-                     _input_cell(new_raw, dim), {"added": "given", "removed": "no longer"
-                                                 " given"}.get(kind, "changed")))
+        before, after = _input_cell(old_raw, dim), _input_cell(new_raw, dim)
+        if kind == "changed" and before == after:  # the same value, from another document
+            rows.append((s.number if s else "—", f"{words}: source",
+                         _source(old_raw), _source(new_raw), "source changed"))
+            continue
+        rows.append((s.number if s else "—", words, before, after,
+                     {"added": "given", "removed": "no longer given"}.get(kind, "changed")))
     for cid, key, a, b, _unit, rel in ch.results:
         s = sections.get(cid)
         r = next((r for r in s.results if r.key == key), None) if s else None
