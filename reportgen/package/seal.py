@@ -278,11 +278,11 @@ def _resaved(data: bytes, byte_range: list[int], contents: bytes) -> bool:
 
 def seal_states(data: bytes) -> list[SealState]:
     """Every seal of the package in ``data``, validated (no network, no trust list)."""
+    import logging
+
     from pyhanko.pdf_utils.reader import PdfFileReader
     from pyhanko.sign.validation import validate_pdf_signature
     from pyhanko_certvalidator import ValidationContext
-
-    import logging
 
     # a self-signed certificate is reported below; the library's log would repeat it
     for name in ("pyhanko", "pyhanko_certvalidator"):

@@ -9,6 +9,7 @@ commits its files together (reportgen.pipeline.commit).
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -51,6 +52,8 @@ class BuildOptions:
     template_dir: Path | None = None  # overrides the job's [package] template_dir
     self_check: bool = True
     split: bool = False  # compute in a forked child, lay out here (pipeline.scheduler)
+    archived: bool = False  # the job came out of a package (load_job's archived)
+    seal: Callable[[bytes], bytes] | None = None  # signs the PDF before it is committed
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -139,6 +142,8 @@ def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
     sched.finish()
     if opts.self_check:
         self_check(pdf, front.doc, embedded=[f.name for f in front.files])
+    if opts.seal is not None:
+        pdf = opts.seal(pdf)
     return made_package(path, front, pdf, images.payloads() if opts.html else None)
 
 
@@ -146,7 +151,7 @@ def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
                sched: Scheduler) -> Front:
     """Load the job, compute every calc once, apply the transforms, write the results and
     the HTML: everything before the layout."""
-    job = load_job(path, plugins)
+    job = load_job(path, plugins, archived=opts.archived)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
     if not opts.force:
