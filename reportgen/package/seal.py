@@ -397,3 +397,36 @@ def archival_problems(data: bytes, embedded: list[str]) -> list[str]:
                 if ap is None or "/N" not in ap:
                     out.append(f"an annotation on page {number} has no appearance")
     return out
+
+
+# ---------------------------------------------------------------- a test certificate
+
+
+def make_test_key(common_name: str, organisation: str, passphrase: bytes | None,
+                  *, pem: bool = False) -> bytes:
+    """A fresh self-signed key and certificate for demonstrations and tests, as PKCS#12
+    (or PEM: key then certificate). Never a firm's real seal: it is made on the spot."""
+    from cryptography import x509
+    from cryptography.hazmat.primitives import hashes, serialization
+    from cryptography.hazmat.primitives.asymmetric import ec
+    from cryptography.hazmat.primitives.serialization import pkcs12
+    from cryptography.x509.oid import NameOID
+
+    key = ec.generate_private_key(ec.SECP256R1())
+    name = x509.Name([x509.NameAttribute(NameOID.COMMON_NAME, common_name),
+                      x509.NameAttribute(NameOID.ORGANIZATION_NAME, organisation)])
+    start = dt.datetime.now(dt.UTC) - dt.timedelta(days=1)
+    cert = (x509.CertificateBuilder().subject_name(name).issuer_name(name)
+            .public_key(key.public_key()).serial_number(x509.random_serial_number())
+            .not_valid_before(start).not_valid_after(start + dt.timedelta(days=730))
+            .add_extension(x509.KeyUsage(True, True, False, False, False, False, False,
+                                         False, False), critical=True)
+            .sign(key, hashes.SHA256()))
+    crypt = (serialization.BestAvailableEncryption(passphrase) if passphrase
+             else serialization.NoEncryption())
+    if pem:
+        return (key.private_bytes(serialization.Encoding.PEM,
+                                  serialization.PrivateFormat.PKCS8, crypt)
+                + cert.public_bytes(serialization.Encoding.PEM))
+    return pkcs12.serialize_key_and_certificates(organisation.encode(), key, cert, None,
+                                                 crypt)

@@ -91,7 +91,7 @@ def pages_of(data: bytes) -> list[Page]:
                 c.read_bytes() for c in _contents(obj))).hexdigest()
             rest = hashlib.sha256()
             for k in sorted(obj.keys()):
-                if k not in ("/Contents", "/Annots", "/Parent") | _SKIP_KEYS:
+                if k not in _SKIP_KEYS | {"/Contents", "/Annots"}:
                     rest.update(k.encode() + dig(obj[k]))
             annots = tuple(dig(a).hex() for a in obj.get("/Annots", ())
                            if a.get("/FT") != "/Sig")
@@ -164,8 +164,11 @@ def printed_numbers(package: bytes, doc: Any) -> list[str]:
     with pikepdf.open(io.BytesIO(package)) as pdf:
         text = _comparable(" ".join(_pages_text(pdf)))
     title = _comparable("Summary of results and design checks")
-    start = text.rfind(title)  # the contents page lists the title first
-    summary = text[start:] if start >= 0 else text
+    start = max(text.rfind(title), 0)  # the contents page lists the title first
+    end = -1
+    if doc.sections:  # the summary ends where the first calc's section begins
+        end = text.find(_comparable(doc.sections[0].title[:60]), start + len(title))
+    summary = text[start:end] if end > start else text[start:]
     units = doc.info.units
     wanted = []
     for s in doc.sections:

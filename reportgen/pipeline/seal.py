@@ -150,14 +150,17 @@ def verify_package(path: str, rtol: float) -> dict[str, Any]:
 
             same_env = not environment_differences(pkg.manifest, results_data(doc),
                                                    pkg.files.get(LOCK_NAME))
-            if same_env and data.startswith(rebuilt):
-                out["page_check"] = ("byte-identical with a rebuild" if not states else
-                                     "the sealed file starts byte for byte with a rebuild")
+            if same_env and data == rebuilt:
+                out["page_check"] = "byte-identical with a rebuild"
             else:
+                # what a reader sees now, every later update included (a seal's own
+                # signature field apart)
                 out["shown"] += compare_pages(data, rebuilt, exact=same_env)
                 out["page_check"] = ("every page draws the same as a rebuild" if same_env
                                      else "every page's text matches a rebuild (another"
                                      " environment: drawings not compared)")
+                if same_env and data.startswith(rebuilt):
+                    out["page_check"] += ", and the file starts byte for byte with it"
     except NotAPackage:
         pass
     except Exception as exc:  # reported, never a crash of a folder's run
