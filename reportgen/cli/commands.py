@@ -111,6 +111,10 @@ def build_command(args) -> int:
         from reportgen.pipeline.dask import require_dask
 
         require_dask()  # the install hint now, before anything is built
+    if args.command == "demo":
+        from reportgen.cli.seal import demo_refuse_existing
+
+        demo_refuse_existing(args.out, force)
     if target.is_dir():
         from reportgen.cli.progress import Progress
         from reportgen.pipeline.register import REGISTER_JSON, REGISTER_PDF
@@ -136,6 +140,10 @@ def build_command(args) -> int:
         print(f"{len(built)} of {len(done.outcomes)} packages built"
               + (f"; {n_bad} not built" if n_bad else "")
               + f"; {sum(1 for o in built if o['checks_failed'])} with failing checks")
+        if args.command == "demo":
+            from reportgen.cli.seal import demo_seal
+
+            demo_seal(args.out, built)
         _prune_cache(opts)
         return done.exit_code
     if not target.exists():

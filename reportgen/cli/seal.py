@@ -71,3 +71,43 @@ def print_shown(o: dict[str, Any]) -> None:
         print(f"  ALTERED: {line}")
     for line in o.get("notes", []):
         print(f"  note: {line}")
+
+
+DEMO_FOLDER = "sealed"
+
+
+def demo_refuse_existing(out: Path, force: bool) -> None:
+    """The demo writes its sealed sample into OUT/sealed/: never over a user's files."""
+    folder = out / DEMO_FOLDER
+    if not force and folder.exists() and any(folder.iterdir()):
+        raise JobError(Problem(str(folder), "already exists; reportgen demo replaces files"
+                               " only with --force (or give another --out folder)"))
+
+
+def demo_seal(out: Path, built: list[dict[str, Any]]) -> None:
+    """Seal a copy of the demo's first final package with a key made on the spot for the
+    invented approver (written beside it: the certificate only, never the key)."""
+    from reportgen.package.seal import load_key, make_test_key
+    from reportgen.pipeline.commit import atomic_write
+    from reportgen.pipeline.seal import seal_file
+
+    final = [o for o in built if o.get("review_state") == "approved"
+             and not o.get("checks_failed")]
+    if not final:
+        return
+    folder = out / DEMO_FOLDER
+    folder.mkdir(exist_ok=True)
+    pem = make_test_key("S. Brannock", "Quillmoor Engineering Partners (invented)", None,
+                        pem=True)
+    cert = pem[pem.index(b"-----BEGIN CERTIFICATE"):]
+    import tempfile
+
+    with tempfile.TemporaryDirectory(prefix="reportgen-demo-key-") as tmp:
+        key_path = Path(tmp) / "demo.pem"
+        key_path.write_bytes(pem)
+        key = load_key(key_path, None)
+    source = Path(final[0]["pdf"])
+    target = seal_file(source, key, out=folder / source.name)
+    atomic_write(folder / "demo-seal-certificate.pem", cert)
+    print(f"sealed sample: {target} (signed with a test certificate made just now for an"
+          " invented approver: a demonstration, not a seal)")
