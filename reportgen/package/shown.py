@@ -78,8 +78,13 @@ def pages_of(data: bytes) -> list[Page]:
     """The digests and text of every page of the PDF in ``data``."""
     import pikepdf
 
+    from reportgen.package.seal import SealError, seal_box
     from reportgen.render.selfcheck import _pages_text
 
+    try:
+        box = seal_box(data)[1]
+    except SealError:
+        box = None
     with pikepdf.open(io.BytesIO(data)) as pdf:
         index = {p.objgen: i + 1 for i, p in enumerate(pdf.pages)}
         dig = _Digester(index)
@@ -94,10 +99,24 @@ def pages_of(data: bytes) -> list[Page]:
                 if k not in _SKIP_KEYS | {"/Contents", "/Annots"}:
                     rest.update(k.encode() + dig(obj[k]))
             annots = tuple(dig(a).hex() for a in obj.get("/Annots", ())
-                           if a.get("/FT") != "/Sig")
+                           if not _seal_widget(a, box))
             out.append(Page(content=content, resources=rest.hexdigest(), annotations=annots,
                             text=text))
         return out
+
+
+def _seal_widget(annot: Any, box: tuple[float, ...] | None) -> bool:
+    """A signed signature field inside the cover's seal box: the seal's own face, which
+    verify checks as a seal. Any other annotation counts as drawn over the page."""
+    if box is None or annot.get("/FT") != "/Sig" or "/V" not in annot:
+        return False
+    try:
+        x1, y1, x2, y2 = (float(v) for v in annot.get("/Rect"))
+    except (TypeError, ValueError):
+        return False
+    tol = 0.5
+    return (min(x1, x2) >= box[0] - tol and max(x1, x2) <= box[2] + tol
+            and min(y1, y2) >= box[1] - tol and max(y1, y2) <= box[3] + tol)
 
 
 def _contents(page: Any) -> list[Any]:
