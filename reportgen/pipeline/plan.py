@@ -168,7 +168,8 @@ def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
     theme = opts.template_dir or job.template_dir
     html = render_html(doc, staged.assets, template_dir=theme, logo=firm_logo(theme),
                        extra_hook=jinja_hook(doc, plugins))
-    files = embedded_files(job, results, manifest_bytes(doc, job, results))
+    files = embedded_files(job, results, manifest_bytes(
+        doc, job, results, templates="firm" if theme else "built-in"))
     return Front(job=job, doc=doc, results=results, html=html, files=files,
                  roots=(theme,) if theme else (), ready=staged.ready, pending=staged.pending,
                  jobs=staged.jobs)

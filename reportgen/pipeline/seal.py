@@ -114,10 +114,11 @@ def verify_package(path: str, rtol: float) -> dict[str, Any]:
     altered = False
     try:
         states = seal_states(data)
-    except Exception as exc:  # a damaged signature dictionary
+    except Exception as exc:  # a damaged signature dictionary, or a PDF beyond reading
         states = []
-        out["seals"].append([f"a seal cannot be read: {error_text(exc)}"])
-        altered = True
+        if b"/ByteRange" in data:  # it carries a signature: one that cannot be checked
+            out["seals"].append([f"a seal cannot be read: {error_text(exc)}"])
+            altered = True
     for st in states:
         out["seals"].append(describe(st))
         if not st.holds:
@@ -138,9 +139,13 @@ def verify_package(path: str, rtol: float) -> dict[str, Any]:
             doc = compute_document(job, plugins)
         out["shown"] += printed_numbers(data, doc)
         raw = pkg.job_raw.get("package", {}) if isinstance(pkg.job_raw, dict) else {}
-        outside = [k for k in ("template_dir", "previous_package") if raw.get(k)]
+        outside = [f"the job's {k}" for k in ("template_dir", "previous_package")
+                   if raw.get(k)]
+        if pkg.manifest.get("templates", "built-in") != "built-in" and not raw.get(
+                "template_dir"):
+            outside.insert(0, "the firm's template folder it was built with")
         if outside:
-            out["notes"].append("pages not compared with a rebuild: the job's "
+            out["notes"].append("pages not compared with a rebuild: "
                                 + " and ".join(outside) + " is not embedded in the package;"
                                 " the summary's numbers were compared")
         else:
