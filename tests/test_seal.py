@@ -145,8 +145,14 @@ def test_pem_key_and_a_wrong_passphrase(built, tmp_path, monkeypatch, capsys):
 
 
 def test_passphrase_is_never_an_argument(built, capsys):
-    with pytest.raises(SystemExit):
+    with pytest.raises(SystemExit) as e:
+        main(["seal", "--help"])
+    assert e.value.code == 0
+    helptext = capsys.readouterr().out
+    assert "usage: reportgen seal" in helptext and "--passphrase" not in helptext
+    with pytest.raises(SystemExit) as e:
         main(["seal", str(built["pdf"]), "--key", str(built["key"]), "--passphrase", PASS])
+    assert e.value.code == 2
 
 
 def _variant(tmp: Path, replace: dict[str, str]) -> Path:
