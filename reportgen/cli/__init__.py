@@ -77,6 +77,14 @@ def _parser() -> argparse.ArgumentParser:
     v.add_argument("--scheduler", default=None, help="Dask scheduler address")
     common(v)
 
+    sl = sub.add_parser("seal", help="sign a final package into its cover's seal box"
+                        " (passphrase from a terminal prompt or REPORTGEN_SEAL_PASSPHRASE)")
+    sl.add_argument("package", type=Path, help="the package PDF")
+    _seal_flags(sl, "--key")
+    sl.add_argument("--out", type=Path, default=None,
+                    help="write the sealed package here (default: in place)")
+    common(sl)
+
     e = sub.add_parser("extract", help="write a package's embedded files into a folder")
     e.add_argument("package", type=Path)
     e.add_argument("dir", type=Path)
@@ -125,6 +133,15 @@ def _build_flags(b: argparse.ArgumentParser) -> None:
     b.add_argument("--executor", choices=("local", "dask"), default="local",
                    help="where folder builds run (dask needs reportgen[dask])")
     b.add_argument("--scheduler", default=None, help="Dask scheduler address")
+    _seal_flags(b, "--seal-key")
+
+
+def _seal_flags(p: argparse.ArgumentParser, key: str) -> None:
+    p.add_argument(key, type=Path, default=None, required=key == "--key",
+                   help="PKCS#12 or PEM file with the signer's key and certificate"
+                   + (" (with --final: seal the package)" if key != "--key" else ""))
+    p.add_argument("--tsa-url", default=None,
+                   help="an RFC 3161 time-stamp authority to time-stamp the seal")
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -245,6 +262,10 @@ def _dispatch(args: argparse.Namespace) -> int:
         from reportgen.cli.commands import verify_command
 
         return verify_command(args)
+    if cmd == "seal":
+        from reportgen.cli.seal import seal_command
+
+        return seal_command(args)
     if cmd == "extract":
         from reportgen.cli.commands import extract_command
 

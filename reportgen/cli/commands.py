@@ -115,6 +115,10 @@ def build_command(args) -> int:
     opts = BuildOptions(out_dir=args.out, force=force, final=final, html=html,
                         use_cache=use_cache, template_dir=tdir.resolve() if tdir else None,
                         workers=1)
+    if getattr(args, "seal_key", None) is not None:
+        from reportgen.cli.seal import build_sealer
+
+        opts = BuildOptions(**{**opts.__dict__, "seal": build_sealer(args, target)})
     if executor == "dask":
         from reportgen.pipeline.dask import require_dask
 
@@ -123,6 +127,10 @@ def build_command(args) -> int:
     if split and not target.is_file():
         raise JobError(Problem(str(target), "--split builds the rows of one job file's"
                                " equipment schedule; name the job file"))
+    if args.command == "demo":
+        from reportgen.cli.seal import demo_refuse_existing
+
+        demo_refuse_existing(args.out, force)
     if target.is_dir() or split:
         from reportgen.cli.progress import Progress
         from reportgen.pipeline.register import REGISTER_JSON, REGISTER_PDF
@@ -155,6 +163,10 @@ def build_command(args) -> int:
         print(f"{len(built)} of {len(done.outcomes)} packages built"
               + (f"; {n_bad} not built" if n_bad else "")
               + f"; {sum(1 for o in built if o['checks_failed'])} with failing checks")
+        if args.command == "demo":
+            from reportgen.cli.seal import demo_seal
+
+            demo_seal(args.out, built)
         _prune_cache(opts)
         return done.exit_code
     if not target.exists():
@@ -190,11 +202,17 @@ def summary_line(result) -> str:
 # ---------------------------------------------------------------- verify, extract, diff
 
 def _print_outcome(o: dict[str, Any], rtol: float) -> None:
+    from reportgen.cli.seal import print_shown
+
     if o.get("error"):
         print(f"error: {o['error']}", file=sys.stderr)
+        print_shown(o)
         return
     head = f"{o['package']}: {o['label']}"
-    if not o["differences"]:
+    if o.get("altered") and not o["differences"]:
+        print(f"{head}: ALTERED: the results agree with a fresh rebuild, but what the"
+              " package shows or its seal does not (below)")
+    elif not o["differences"]:
         print(f"{head}: OK: manifest hashes match the {o['files']} embedded files; all"
               f" {o['results']} results (relative tolerance {rtol:g}) and {o['checks']}"
               " check statuses agree with a fresh rebuild")
@@ -207,6 +225,7 @@ def _print_outcome(o: dict[str, Any], rtol: float) -> None:
         for r in rows:
             print("  " + "  ".join(str(r[i]).ljust(widths[i]) for i in range(4))
                   + (f"  {r[4]}" if r[4] else ""))
+    print_shown(o)
     for line in o["environment"]:
         print(f"  info: environment differs: {line}")
 
@@ -225,7 +244,7 @@ def pdf_files(targets: list[Path]) -> list[Path]:
 
 def verify_command(args: Any) -> int:
     """Verify each package (or each PDF in a folder); exit with the worst outcome."""
-    from reportgen.package.verify import verify_one
+    from reportgen.pipeline.seal import verify_package
     from reportgen.pipeline.sets import run_tasks
 
     rtol = float(args.rtol)
@@ -244,7 +263,7 @@ def verify_command(args: Any) -> int:
     workers = args.jobs if getattr(args, "jobs", None) is not None else default_workers()
     if workers < 1:
         raise JobError("--jobs must be at least 1")
-    outcomes = run_tasks(verify_one, [(str(p), rtol) for p in files], workers=workers,
+    outcomes = run_tasks(verify_package, [(str(p), rtol) for p in files], workers=workers,
                          executor=getattr(args, "executor", "local") or "local",
                          scheduler=getattr(args, "scheduler", None))
     counted = []

@@ -110,7 +110,10 @@ def environment_lock() -> bytes:
     return ("\n".join(lines) + "\n").encode("utf-8")
 
 
-def manifest_data(doc: Document, job: Job, results: bytes) -> dict[str, Any]:
+def manifest_data(doc: Document, job: Job, results: bytes,
+                  templates: str = "built-in") -> dict[str, Any]:
+    """``templates``: "built-in", or "firm" when a firm's template folder (not embedded)
+    laid the pages out; verify can rebuild the pages only from the built-in ones."""
     from reportgen._version import __version__
 
     plugins = {}
@@ -131,12 +134,14 @@ def manifest_data(doc: Document, job: Job, results: bytes) -> dict[str, Any]:
         "platform": platform.platform(terse=True),
         "plugins": dict(sorted(plugins.items())),
         "libraries": {name: library_version(name) for name in LIBRARIES},
+        "templates": templates,
     }
 
 
-def manifest_bytes(doc: Document, job: Job, results: bytes) -> bytes:
-    return (json.dumps(manifest_data(doc, job, results), indent=2, sort_keys=True) + "\n"
-            ).encode("utf-8")
+def manifest_bytes(doc: Document, job: Job, results: bytes,
+                   templates: str = "built-in") -> bytes:
+    return (json.dumps(manifest_data(doc, job, results, templates), indent=2,
+                       sort_keys=True) + "\n").encode("utf-8")
 
 
 def embedded_files(job: Job, results: bytes, manifest: bytes) -> list[EmbeddedFile]:

@@ -9,6 +9,7 @@ commits its files together (reportgen.pipeline.commit).
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -52,6 +53,8 @@ class BuildOptions:
     self_check: bool = True
     split: bool = False  # compute in a forked child, lay out here (pipeline.scheduler)
     row: str | None = None  # an equipment schedule's row (its tag), built as its own package
+    archived: bool = False  # the job came out of a package (load_job's archived)
+    seal: Callable[[bytes], bytes] | None = None  # signs the PDF before it is committed
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -143,6 +146,8 @@ def make_package(path: Path, plugins: PluginSet, opts: BuildOptions,
     sched.finish()
     if opts.self_check:
         self_check(pdf, front.doc, embedded=[f.name for f in front.files])
+    if opts.seal is not None:
+        pdf = opts.seal(pdf)
     return made_package(path, front, pdf, images.payloads() if opts.html else None)
 
 
@@ -150,11 +155,12 @@ def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
                sched: Scheduler) -> Front:
     """Load the job, compute every calc once, apply the transforms, write the results and
     the HTML: everything before the layout."""
-    job = load_job(path, plugins, template_dir=opts.template_dir)
+    job = load_job(path, plugins, template_dir=opts.template_dir, archived=opts.archived)
     if opts.row is not None:
         from reportgen.job.split import row_job
 
-        job = row_job(job, opts.row, plugins, template_dir=opts.template_dir)
+        job = row_job(job, opts.row, plugins, template_dir=opts.template_dir,
+                      archived=opts.archived)
     check_out_dir(opts.out_dir, path)
     pdf_path, results_path = output_paths(job, opts.out_dir)
     if not opts.force:
@@ -171,7 +177,8 @@ def front_half(path: Path, plugins: PluginSet, opts: BuildOptions,
     theme = opts.template_dir or job.template_dir
     html = render_html(doc, staged.assets, template_dir=theme, logo=firm_logo(theme),
                        extra_hook=jinja_hook(doc, plugins))
-    files = embedded_files(job, results, manifest_bytes(doc, job, results))
+    files = embedded_files(job, results, manifest_bytes(
+        doc, job, results, templates="firm" if theme else "built-in"))
     return Front(job=job, doc=doc, results=results, html=html, files=files,
                  roots=(theme,) if theme else (), ready=staged.ready, pending=staged.pending,
                  jobs=staged.jobs)
