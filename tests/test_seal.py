@@ -338,10 +338,15 @@ def _edit_glyph(data: bytes, page_no: int, old: str, new: str) -> bytes:
 
 def test_one_glyph_edited_is_named_with_its_page(built, rebuilt):
     data = built["pdf"].read_bytes()
-    # page 3 is the summary: f_n = 3.082 Hz drawn as 3.182 Hz
-    tampered = _edit_glyph(data, 3, "3.082", "3.182")
+    # the first page that draws f_n = 3.082 Hz (the summary): drawn as 3.182 Hz instead
+    for page_no in range(1, 8):
+        try:
+            tampered = _edit_glyph(data, page_no, "3.082", "3.182")
+            break
+        except AssertionError:
+            continue
     found = compare_pages(tampered, rebuilt, exact=True)
-    assert len(found) == 1 and found[0].startswith("page 3: shows '")
+    assert len(found) == 1 and found[0].startswith(f"page {page_no}: shows '")
     assert "3.182" in found[0] and "3.082" in found[0]
     # the printed number no longer matches the embedded results either
     assert any("natural_frequency" in x for x in printed_numbers(tampered,
@@ -427,7 +432,7 @@ def test_embedded_job_results_and_manifest_replaced_consistently(built, tmp_path
     assert (f"natural_frequency = {f_new:.3f} Hz, which the summary does not print"
             in out)
     assert re.search(r"ALTERED: page \d+: shows '3200' where the rebuild shows '3150'", out)
-    assert "ALTERED: page 3: shows '3.082' where the rebuild shows" in out
+    assert re.search(r"ALTERED: page \d+: shows '3.082' where the rebuild shows", out)
 
 
 # ---------------------------------------------------------------- broken and forged seals

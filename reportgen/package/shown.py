@@ -185,20 +185,32 @@ def printed_numbers(package: bytes, doc: Any) -> list[str]:
     title = _comparable("Summary of results and design checks")
     start = max(text.rfind(title), 0)  # the contents page lists the title first
     end = -1
-    if doc.sections:  # the summary ends where the first calc's section begins
-        end = text.find(_comparable(doc.sections[0].title[:60]), start + len(title))
+    if doc.sections:  # the summary ends where the first calc's section begins (its key
+        # results table may name the calc too: look after the summary's checks heading)
+        heads = [i for h in ("Design checks", "Failing design checks")
+                 if (i := text.find(_comparable(h), start)) >= 0]
+        end = text.find(_comparable(doc.sections[0].title[:60]), min(heads, default=start)
+                        + len(title))
     summary = text[start:end] if end > start else text[start:]
     units = doc.info.units
     wanted = []
+    scheduled = set(getattr(doc, "schedule_ids", ()) or ())
     for s in doc.sections:
         for r in s.results:
-            if r.key_result:
+            shown = (r.key in doc.schedule_results if s.calc_id in scheduled
+                     else r.key_result)
+            if shown:
                 value, unit = quantity_parts(r.quantity, units)
                 wanted.append((f"{s.calc_id}/{r.key}", value, unit))
     for s, c in doc.checks:
-        if c.value is not None:
-            value, unit = quantity_parts(c.value, units)
-            wanted.append((f"{s.calc_id}/{c.id} (check)", value, unit))
+        # the summary lists design checks (a schedule: the failing ones and each row's
+        # governing check); information rows stay in their sections
+        if c.value is None or c.status == "info":
+            continue
+        if s.calc_id in scheduled and c.status != "fail" and c is not s.governing_check:
+            continue
+        value, unit = quantity_parts(c.value, units)
+        wanted.append((f"{s.calc_id}/{c.id} (check)", value, unit))
     out = []
     at = 0
     for label, value, unit in wanted:
@@ -206,6 +218,6 @@ def printed_numbers(package: bytes, doc: Any) -> list[str]:
         if found < 0:
             out.append(f"the embedded results give {label} = {value} {unit}".rstrip()
                        + ", which the summary does not print")
-        else:
+        elif not scheduled:  # in the summary's order (a schedule's table is in tag order)
             at = found
     return out
