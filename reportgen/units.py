@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -78,6 +79,7 @@ DIMENSIONS: dict[str, Dimension] = {
                   "[length] ** 4"),
         Dimension("force_per_length", "N/m", "N/m", "lbf/ft", "lbf/ft", "kN/m",
                   "[mass] / [time] ** 2"),
+        Dimension("rotational_speed", "Hz", "rpm", "Hz", "rpm", "rpm", "1 / [time]"),
     )
 }
 
@@ -434,7 +436,7 @@ def _to_si(q, dim: Dimension, ureg) -> float:
         if not q.dimensionless:
             raise ValueError
         return float(q.to("").magnitude)
-    if dim.name in ("frequency", "angular_frequency"):
+    if dim.name in ("frequency", "angular_frequency", "rotational_speed"):
         if q.dimensionality != ureg.Quantity(1, "Hz").dimensionality:
             raise ValueError
         base = q.to_base_units()
@@ -442,7 +444,7 @@ def _to_si(q, dim: Dimension, ureg) -> float:
         # with radians in it measures angle per time, one without counts cycles
         angular = "radian" in str(base.units)
         per_second = float(base.magnitude)
-        if dim.name == "frequency":
+        if dim.name != "angular_frequency":
             return per_second / (2.0 * math.pi) if angular else per_second
         named_cycles = re.search(r"hertz|cycle|revolution", str(q.units))
         return per_second * (2.0 * math.pi) if named_cycles and not angular else per_second
@@ -548,3 +550,201 @@ def format_number(value: float, digits: int = 4) -> str:
     if mtext in ("10", "-10"):  # rounding carried into the next decade
         mtext, mag = ("1" if mant > 0 else "-1"), mag + 1
     return f"{mtext}e{mag}"
+
+
+# ---------------------------------------------------------------- display units
+
+#: SI units per family, smallest first: (label, SI value → displayed value factor). The
+#: display picks one so that no value needs more than four digits before the point nor
+#: prints as a long decimal fraction.
+SI_LADDERS: dict[str, tuple[tuple[str, float], ...]] = {
+    "length": (("µm", 1e6), ("mm", 1e3), ("m", 1.0)),
+    "velocity": (("µm/s", 1e6), ("mm/s", 1e3), ("m/s", 1.0)),
+    "acceleration": (("mm/s²", 1e3), ("m/s²", 1.0)),
+    "stiffness": (("N/m", 1.0), ("kN/m", 1e-3), ("MN/m", 1e-6), ("GN/m", 1e-9)),
+    "force_per_length": (("N/m", 1.0), ("kN/m", 1e-3), ("MN/m", 1e-6)),
+    "force": (("N", 1.0), ("kN", 1e-3), ("MN", 1e-6)),
+    "mass": (("g", 1e3), ("kg", 1.0), ("t", 1e-3)),
+    "mass_length": (("g·mm", 1e6), ("kg·mm", 1e3), ("kg·m", 1.0)),
+    "damping": (("N·s/m", 1.0), ("kN·s/m", 1e-3), ("MN·s/m", 1e-6)),
+    "moment": (("N·m", 1.0), ("kN·m", 1e-3), ("MN·m", 1e-6)),
+    "rotational_stiffness": (("N·m/rad", 1.0), ("kN·m/rad", 1e-3), ("MN·m/rad", 1e-6)),
+    "pressure": (("Pa", 1.0), ("kPa", 1e-3), ("MPa", 1e-6), ("GPa", 1e-9)),
+    "time": (("ms", 1e3), ("s", 1.0)),
+    "area": (("mm²", 1e6), ("m²", 1.0)),
+}
+#: The engineering choice per family where the job gives none (an SI package).
+SI_DEFAULTS = {"length": "mm", "velocity": "mm/s", "acceleration": "m/s²", "stiffness": "kN/m",
+               "force_per_length": "kN/m", "force": "kN", "mass": "kg", "mass_length": "kg·mm",
+               "damping": "N·s/m", "moment": "kN·m", "rotational_stiffness": "kN·m/rad",
+               "pressure": "kPa", "time": "s", "area": "m²"}
+#: A US package's units where its job gives none: customary, one unit per family.
+US_DEFAULTS = {"mass_length": "oz·in"}
+#: In a US package's equations a mass is in lbf·s²/in, so that k/m and W/k need no g_c.
+US_COHERENT = {"mass": ("lbf·s²/in", "lbf*s**2/in"), "mass_length": ("lbf·s²", "lbf*s**2")}
+#: Below this a value steps down a prefix; at or above LADDER_HIGH it steps up.
+LADDER_LOW, LADDER_HIGH = 0.1, 1e4
+_PRETTY = (("**2", "²"), ("**3", "³"), ("**4", "⁴"), ("^2", "²"), ("^3", "³"), ("*", "·"),
+           ("um", "µm"))
+
+
+def pretty_unit(text: str) -> str:
+    """A unit as written in a job ("lbf*s/in", "m/s**2") as printed ("lbf·s/in", "m/s²")."""
+    out = " ".join(text.split())
+    for a, b in _PRETTY:
+        out = out.replace(a, b)
+    return out.replace(" ", "·")
+
+
+@lru_cache(maxsize=256)
+def _unit_factor(label: str, dimension: str) -> float:
+    """SI value × factor = value in ``label`` (a printed unit)."""
+    dim = DIMENSIONS[dimension]
+    text = label.replace("·", "*").replace("²", "**2").replace("³", "**3").replace("⁴", "**4")
+    text = text.replace("µ", "u").replace("°", "deg")
+    if dimension == "rotational_speed":
+        return parse_quantity("1 Hz", "frequency") / parse_quantity(f"1 {text}", "frequency")
+    if dimension == "angle":
+        return 1.0 / parse_quantity(f"1 {text}", "angle")
+    q = _registry().Quantity(1.0, text)
+    if _trade_weight(q, dimension) or not q.check(dim.pint_dimensionality or "[]"):
+        raise UnitProblem(f"{label!r} is not a plain unit of {dimension}")
+    return 1.0 / float(q.to(dim.si_unit).magnitude) if dim.si_unit else 1.0 / float(
+        q.to("").magnitude)
+
+
+@dataclass(frozen=True, slots=True)
+class DisplayUnits:
+    """The units a package prints in: a system, and a unit per quantity family (the unit the
+    job gave, a firm's preference, or the engineering default). ``key`` is its compact,
+    hashable form ("SI", "US;length=mil")."""
+
+    system: str
+    preferred: tuple[tuple[str, str], ...] = ()
+
+    @property
+    def key(self) -> str:
+        return ";".join([self.system, *(f"{d}={u}" for d, u in self.preferred)])
+
+    def family_unit(self, dimension: str, equation: bool = False) -> str:
+        chosen = dict(self.preferred).get(dimension)
+        if self.system == "US" and equation and dimension in US_COHERENT and not chosen:
+            return US_COHERENT[dimension][0]
+        if chosen:
+            return chosen
+        if self.system == "US":
+            return US_DEFAULTS.get(dimension, DIMENSIONS[dimension].us_label)
+        return SI_DEFAULTS.get(dimension, DIMENSIONS[dimension].si_label)
+
+    def unit(self, value: float, dimension: str, *, prefix: bool = True,
+             equation: bool = False) -> tuple[float, str]:
+        """(factor, label) for ``value`` (SI): the family's unit, in an SI package stepped
+        along its prefixes so the number reads well (``prefix=False``: a table column's one
+        unit)."""
+        if dimension == "rotational_speed":
+            return _unit_factor("rpm", dimension), "rpm"
+        if dimension == "angle":
+            return (180.0 / math.pi, "°") if self.system == "US" else (1.0, "rad")
+        label = self.family_unit(dimension, equation)
+        if not label:
+            return 1.0, ""
+        factor = (_us_coherent_factor(dimension) if label in
+                  {v[0] for v in US_COHERENT.values()} else _unit_factor(label, dimension))
+        ladder = SI_LADDERS.get(dimension, ())
+        labels = [u for u, _ in ladder]
+        if not prefix or self.system != "SI" or label not in labels or value == 0 or (
+                not math.isfinite(value)):
+            return factor, label
+        i = labels.index(label)
+        size = abs(value)
+        while size * ladder[i][1] >= LADDER_HIGH and i + 1 < len(ladder):
+            i += 1
+        while size * ladder[i][1] < LADDER_LOW and i > 0 and (
+                size * ladder[i - 1][1] < LADDER_HIGH):
+            i -= 1
+        return ladder[i][1], ladder[i][0]
+
+    def show(self, value: float, dimension: str, digits: int = 4, *, prefix: bool = True,
+             equation: bool = False) -> tuple[str, str]:
+        """(number text, unit label) as printed: significant figures, groups of three digits
+        from 10 000 up, powers of ten as "e" (the renderer typesets them)."""
+        factor, label = self.unit(value, dimension, prefix=prefix, equation=equation)
+        return group_digits(format_number(value * factor, digits)), label
+
+
+def _us_coherent_factor(dimension: str) -> float:
+    unit = US_COHERENT[dimension][1]
+    return 1.0 / float(_registry().Quantity(1.0, unit).to(DIMENSIONS[dimension].si_unit)
+                       .magnitude)
+
+
+#: The space between groups of three digits (a narrow no-break space, ISO 80000-1 7.3.1).
+GROUP_SPACE = "\u202f"
+
+
+def group_digits(text: str) -> str:
+    """"14800" -> "14 800" from five integer digits up (four stay together: 2500)."""
+    if "e" in text:
+        return text
+    sign, body = ("-", text[1:]) if text.startswith("-") else ("", text)
+    whole, dot, frac = body.partition(".")
+    if len(whole) < 5:
+        return text
+    groups = []
+    while whole:
+        groups.insert(0, whole[-3:])
+        whole = whole[:-3]
+    return sign + GROUP_SPACE.join(groups) + dot + frac
+
+
+def ungroup(text: str) -> str:
+    return text.replace(GROUP_SPACE, "").replace(" ", "")
+
+
+@lru_cache(maxsize=64)
+def display_units(key: str) -> DisplayUnits:
+    """The DisplayUnits a key names ("SI", "US", "SI;length=mm;stiffness=N/mm")."""
+    system, *prefs = key.split(";")
+    pairs = tuple(tuple(p.split("=", 1)) for p in prefs if "=" in p)
+    return DisplayUnits(system=system if system in ("SI", "US") else "SI",
+                        preferred=pairs)  # type: ignore[arg-type]
+
+
+#: Families a job's own unit sets for the whole package (a frequency given in rpm does
+#: not make every frequency rpm: a speed has its own family).
+_FAMILY_FROM_INPUT = frozenset(SI_LADDERS) | {"density", "second_moment_of_area",
+                                              "moment_of_inertia"}
+
+
+def written_unit(raw: object) -> str:
+    """The unit part of a job value ("350 kN/m" -> "kN/m"), without an amplitude
+    convention; "" for a plain number or a range or tolerance."""
+    if not isinstance(raw, str):
+        return ""
+    text = raw.strip()
+    m = _QUALIFIER.search(text)
+    if m:
+        text = text[:m.start()]
+    if _TO.match(text) or _PLUS_MINUS.match(text):
+        return ""
+    return text[_leading_number_end(text):].strip()
+
+
+def preferences(written: list[tuple[str, str]], system: str,
+                firm: Mapping[str, str] | None = None) -> DisplayUnits:
+    """A package's display units from the (dimension, unit as written) of its inputs, in
+    job order (the first unit given for a family wins), over a firm's preferences."""
+    chosen: dict[str, str] = {}
+    for dimension, unit in written:
+        if dimension in chosen or dimension not in _FAMILY_FROM_INPUT or not unit:
+            continue
+        label = pretty_unit(unit)
+        try:
+            _unit_factor(label, dimension)
+        except Exception:  # a weight for a mass, lb/in for a stiffness: keep the default
+            continue
+        chosen[dimension] = label
+    for dimension, label in (firm or {}).items():
+        if dimension in DIMENSIONS and dimension not in chosen:
+            chosen[dimension] = label
+    return DisplayUnits(system=system, preferred=tuple(sorted(chosen.items())))

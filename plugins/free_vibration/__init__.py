@@ -86,7 +86,7 @@ class FreeVibration(CalcType):
         VerificationCase(id="A4_sdof_free_overdamped", description="Overdamped response",
                          source=RAO.citation, status="formula_confirmed_example_invented"),
         VerificationCase(id="A6_static_deflection_natural_frequency",
-                         description="f_n from static deflection (15.76/√δ[mm])",
+                         description="f_n from static deflection (handbook form √(g_n/δ_st)/2π)",
                          source=THOMSON.citation, status="formula_confirmed_example_invented"),
     )
 
@@ -116,12 +116,12 @@ class FreeVibration(CalcType):
         p = ctx.inputs
         m, k = p["mass"], p["stiffness"]
         x0, v0 = p["initial_displacement"], p["initial_velocity"]
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.add(Assumptions(items=text.assumptions(ctx.given)),
               Paragraph(title="Method", text=text.METHOD))
         wn, fn = working.natural_frequency(s, m, k)
         zeta = working.damping(s, p, ctx.given, m, k)
-        dst, f_check, f_hb = working.static_deflection(s, m, k)
+        dst, f_check, f_hb = working.static_deflection(s, m, k, ctx.units)
         checks.static_deflection_agreement(s, f_check, fn, f_hb)
 
         resp = working.response(s, wn, zeta, x0, v0)

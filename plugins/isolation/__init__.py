@@ -69,7 +69,7 @@ class Isolation(CalcType):
         InputSpec(name="mass", symbol="m", description="Total supported mass (machine and base)",
                   dimension="mass", positive=True, minimum=1e-3, maximum=1e7),
         InputSpec(name="speed", symbol="N", description="Running speed of the dominant"
-                  " excitation (1500 rpm = 25 Hz)", dimension="frequency", required=False,
+                  " excitation (1500 rpm = 25 Hz)", dimension="rotational_speed", required=False,
                   positive=True, maximum=1e4),
         InputSpec(name="frequency", symbol="f", description="Frequency of the dominant"
                   " excitation", dimension="frequency", required=False, positive=True,
@@ -164,7 +164,7 @@ class Isolation(CalcType):
     def compute(self, ctx: CalcContext) -> CalcOutput:
         p, crit, units = ctx.inputs, ctx.criteria, ctx.units
         uneven = "mount_positions" in ctx.given
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.add(Assumptions(items=text.assumptions(ctx.given, uneven)),
               Paragraph(title="Method", text=text.METHOD))
         iso = working.operating_point(s, p, ctx.given)

@@ -62,7 +62,7 @@ class Target:
 def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Isolator:
     m, n, zeta, g = p["mass"], p["mounts"], p["damping_ratio"], STANDARD_GRAVITY
     if "speed" in given:
-        f = s.equation("f", "N/60", "frequency", N=p["speed"] * 60.0,
+        f = s.equation("f", "N", "frequency", N=p["speed"],
                        key="forcing_frequency", key_result=True,
                        description="Forcing frequency (running speed N in rpm)")
     else:
@@ -118,6 +118,7 @@ def _stiffness(s: Sheet, p: Mapping[str, Any], given: frozenset[str], m: float, 
 def mount_loads(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...], iso: Isolator,
                 uneven: bool, units: str) -> Loads:
     m, n, g, km = p["mass"], p["mounts"], STANDARD_GRAVITY, iso.k_m
+    s.declare(P_max="force", P_min="force")
     w = s.equation("W", "m*g_n", "force", m=m, g_n=g, key="weight",
                    description="Weight carried by the mounts")
     pmax, pmin = max(loads), min(loads)
@@ -153,6 +154,9 @@ def mount_loads(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...], iso: I
 def _sharing_equation(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...],
                       w: float) -> float:
     pts = np.asarray(p["mount_positions"], dtype=float)
+    s.declare(e_x="length", e_y="length", S_xx="area", S_yy="area", S_xy="area",
+              x_c="length", y_c="length",
+              **{f"{a}_{i + 1}": "length" for i in range(len(pts)) for a in "xy"})
     xc, yc = float(pts[:, 0].mean()), float(pts[:, 1].mean())
     sxx, syy, sxy = second_moments(pts)
     ex, ey = p["cg_x"] - xc, p["cg_y"] - yc
@@ -175,6 +179,7 @@ def _sharing_equation(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...],
 
 def target(s: Sheet, p: Mapping[str, Any], eta_min: float, f: float) -> Target:
     m, n, zeta, g = p["mass"], p["mounts"], p["damping_ratio"], STANDARD_GRAVITY
+    s.declare(eta_min="dimensionless", r_req="dimensionless")
     s.add(Paragraph(title="Mounts the isolation target needs", text=text.TARGET))
     t_req = s.equation("T_req", "1 - eta_min", eta_min=eta_min,
                        description="Largest transmissibility the target allows")

@@ -5,10 +5,13 @@ This module runs plugins and assembles the document tree; it never renders.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import platform
+import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
+from pathlib import Path
 from typing import Any
 
 from reportgen._version import __version__
@@ -33,7 +36,7 @@ from reportgen.model import (
     Table,
     VerificationRow,
 )
-from reportgen.units import DIMENSIONS
+from reportgen.units import DIMENSIONS, input_note, preferences, written_unit
 
 VerifyHook = Callable[[RegisteredCalc, CalcContext, CalcOutput], Any]
 
@@ -46,6 +49,7 @@ class Computed:
     reg: RegisteredCalc
     ctx: CalcContext
     output: CalcOutput
+    display: str = "SI"  # the display units' key its drawings are made in
 
 
 def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None = None,
@@ -59,8 +63,9 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
     malformed output, and VerificationError when an independent check disagrees.
     """
     computed = []
+    display = job_display(job, plugins)
     for spec in job.calcs:
-        c = compute_calc(spec, plugins.calcs[spec.plugin], job.info.units)
+        c = compute_calc(spec, plugins.calcs[spec.plugin], job.info.units, display)
         if on_computed is not None:
             on_computed(c)
         computed.append(c)
@@ -74,7 +79,8 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
             seen.add(reg.name)
             software.append((f"calc type {reg.name}", reg.package,
                              reg.calc_type.version))
-    doc = Document(info=job.info, revision_history=job.revision_history,
+    doc = Document(info=dataclasses.replace(job.info, display=display),
+                   revision_history=job.revision_history,
                    sections=tuple(sections), software=tuple(software))
     return apply_transforms(doc)
 
@@ -96,7 +102,39 @@ def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
     return err
 
 
-def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
+def job_display(job: Job, plugins: PluginSet) -> str:
+    """The key of the units the package prints in: the job's system, the unit each
+    quantity family was first given in (job order), then the firm's ``units.toml`` (a
+    table per system, ``length = "mm"``) in its template folder."""
+    written = []
+    for spec in job.calcs:
+        reg = plugins.calcs.get(spec.plugin)
+        if reg is None:
+            continue
+        for sp in reg.calc_type.inputs:
+            raw = spec.raw_inputs.get(sp.name)
+            if isinstance(raw, dict):
+                raw = raw.get("value")
+            if sp.name in spec.given and sp.kind == "quantity":
+                written.append((sp.dimension, written_unit(raw)))
+    return preferences(written, job.info.units, firm_units(job.template_dir,
+                                                            job.info.units)).key
+
+
+def firm_units(template_dir: Path | None, system: str) -> dict[str, str]:
+    """A firm's display units for ``system`` from ``units.toml`` in its template folder."""
+    if template_dir is None:
+        return {}
+    path = Path(template_dir) / "units.toml"
+    try:
+        table = tomllib.loads(path.read_text(encoding="utf-8")).get(system, {})
+    except (OSError, ValueError):
+        return {}
+    return {str(k): str(v) for k, v in table.items() if isinstance(v, str)}
+
+
+def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str,
+                 display: str = "") -> Computed:
     """Call the calc's compute once, wrapped so a failure names its plugin; check the
     output is well formed."""
     ctx = calc_context(spec, units)
@@ -111,7 +149,7 @@ def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
     if problem:
         raise _failure(reg, spec.id, f"compute returned malformed output: {problem}",
                        "compute")
-    return Computed(spec=spec, reg=reg, ctx=ctx, output=out)
+    return Computed(spec=spec, reg=reg, ctx=ctx, output=out, display=display or units)
 
 
 def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
@@ -200,8 +238,11 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
         source = (f"job file: {written}" if isinstance(written, (str, int, float))
                   and not isinstance(written, bool) else "job file") if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
+        note = input_note(written, sp.dimension) if sp.name in given else ""
+        if note:
+            source = f"{source} ({note})"
         if named:
-            source = named
+            source = named + (f" ({note})" if note else "")
         if sp.kind == "table":
             continue  # a table of its own (_input_tables)
         if sp.kind in ("choice", "text", "file"):

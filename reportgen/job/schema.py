@@ -73,6 +73,7 @@ UNIT_FORMS: dict[str, tuple[str, ...]] = {
     "acceleration": ("A", "L/T2", "L*T-2", "gravity"),
     "frequency": ("H", "1/T", "D/T", "speed"),
     "angular_frequency": ("H", "1/T", "D/T", "speed"),
+    "rotational_speed": ("H", "1/T", "D/T", "speed"),
     "mass_length": ("M*L", "L*M"),
     "moment": ("F*L", "L*F"),
     "rotational_stiffness": ("F*L/D", "F*L", "L*F"),

@@ -152,7 +152,7 @@ def render_assets(doc: Document, *, cache_dir: Path | None = None,
     store = asset_store(cache_dir, use_cache)
     out = Assets()
     drawn: dict[str, bytes] = {}
-    units = doc.info.units
+    units = doc.info.display or doc.info.units
     for kind, block in iter_asset_blocks(doc):
         key = asset_key(block, units)
         if key not in drawn:
