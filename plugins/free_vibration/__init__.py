@@ -68,7 +68,7 @@ class FreeVibration(CalcType):
         InputSpec(name="max_natural_frequency", symbol="f_max",
                   description="Highest acceptable natural frequency", dimension="frequency",
                   required=False, positive=True),
-        InputSpec(name="max_static_deflection", symbol="delta_max",
+        InputSpec(name="max_static_deflection", symbol="delta_allow",
                   description="Largest acceptable static deflection", dimension="length",
                   required=False, positive=True),
     )

@@ -111,7 +111,7 @@ class Isolation(CalcType):
         InputSpec(name="min_efficiency", symbol="eta_min", description="Required isolation"
                   " efficiency 1 − T at the running speed", default=0.90, minimum=0.01,
                   maximum=0.999, default_note="common practice, no source"),
-        InputSpec(name="max_static_deflection", symbol="delta_max", description="Largest"
+        InputSpec(name="max_static_deflection", symbol="delta_allow", description="Largest"
                   " acceptable static deflection of any mount", dimension="length",
                   required=False, positive=True),
     )
