@@ -80,6 +80,7 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("force_per_length", "N/m", "N/m", "lbf/ft", "lbf/ft", "kN/m",
                   "[mass] / [time] ** 2"),
         Dimension("rotational_speed", "Hz", "rpm", "Hz", "rpm", "rpm", "1 / [time]"),
+        Dimension("level", "dB", "dB", "dB", "dB", "dB", ""),
     )
 }
 
@@ -452,6 +453,10 @@ def _to_si(q, dim: Dimension, ureg) -> float:
         if not q.dimensionless:
             raise ValueError
         return float(q.to("rad").magnitude)
+    if dim.name == "level":  # a level in decibels is its own number: no conversion
+        if str(q.units) != "decibel":
+            raise ValueError
+        return float(q.magnitude)
     if _trade_weight(q, dim.name):
         return float(q.to(dim.si_unit, "trade").magnitude)
     return float(q.to(dim.si_unit).magnitude)
@@ -645,6 +650,8 @@ class DisplayUnits:
             return _unit_factor("rpm", dimension), "rpm"
         if dimension == "angle":
             return (180.0 / math.pi, "°") if self.system == "US" else (1.0, "rad")
+        if dimension == "level":
+            return 1.0, "dB"
         label = self.family_unit(dimension, equation)
         if not label:
             return 1.0, ""

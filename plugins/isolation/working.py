@@ -16,7 +16,7 @@ from reportgen_plugins.mechanics import (
 )
 
 from reportgen import Paragraph, Sheet
-from reportgen.units import STANDARD_GRAVITY
+from reportgen.units import STANDARD_GRAVITY, format_number
 
 from . import text
 from .method import required_ratio, second_moments
@@ -80,10 +80,14 @@ def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Is
                    description="Frequency ratio")
     t = s.equation("T", transmissibility_formula(), zeta=zeta, r=r, key="transmissibility",
                    key_result=True, description="Transmissibility at the running speed")
+    amplifies = t > 1.0
     eta = s.equation("eta", "1 - T", T=t, key="isolation_efficiency", key_result=True,
-                     description="Isolation efficiency")
-    s.result("isolation_db", -20.0 * math.log10(t), "dimensionless", "L_T",
-             "Isolation in decibels, −20·log10 T (negative: amplification)")
+                     description=(f"Isolation efficiency: none, the mounts amplify"
+                                  f" × {format_number(t, 3)} (T > 1, no isolation)"
+                                  if amplifies else "Isolation efficiency"))
+    s.equation("L_T", "-20*log10(T)", "level", T=t, key="isolation_db",
+               description=("Transmission level, −20·log10 T: negative, an amplification"
+                            if amplifies else "Isolation in decibels, −20·log10 T"))
     return Isolator(f=f, k=k, k_m=km, f_n=fn, delta_st=dst, r=r, T=t, eta=eta)
 
 

@@ -74,6 +74,7 @@ UNIT_FORMS: dict[str, tuple[str, ...]] = {
     "frequency": ("H", "1/T", "D/T", "speed"),
     "angular_frequency": ("H", "1/T", "D/T", "speed"),
     "rotational_speed": ("H", "1/T", "D/T", "speed"),
+    "level": ("decibel",),
     "mass_length": ("M*L", "L*M"),
     "moment": ("F*L", "L*F"),
     "rotational_stiffness": ("F*L/D", "F*L", "L*F"),
@@ -158,6 +159,8 @@ def _factor(cls: str) -> str:
 def _form(form: str) -> str:
     if form == "gravity":
         return "g"  # the parser reads a lone 'g' for an acceleration as standard gravity
+    if form == "decibel":
+        return r"(?:dB|decibels?)"
     if form == "weight":
         return r"(?:lbf|kip|klbf|pound_force|force_pound)"  # read as weight ÷ standard gravity
     if form == "pound_per_length":
