@@ -585,7 +585,8 @@ SI_DEFAULTS = {"length": "mm", "velocity": "mm/s", "acceleration": "m/s²", "sti
                "pressure": "kPa", "time": "s", "area": "m²"}
 #: A US package's units where its job gives none: customary, one unit per family.
 US_DEFAULTS = {"mass_length": "oz·in"}
-#: In a US package's equations a mass is in lbf·s²/in, so that k/m and W/k need no g_c.
+#: In a US package's equations a mass is in lbf·s²/in (whatever unit the job gave it in),
+#: so that k/m and m·g_n/k come out by hand with no g_c.
 US_COHERENT = {"mass": ("lbf·s²/in", "lbf*s**2/in"), "mass_length": ("lbf·s²", "lbf*s**2")}
 #: Below this a value steps down a prefix; at or above LADDER_HIGH it steps up.
 LADDER_LOW, LADDER_HIGH = 0.1, 1e4
@@ -633,7 +634,7 @@ class DisplayUnits:
 
     def family_unit(self, dimension: str, equation: bool = False) -> str:
         chosen = dict(self.preferred).get(dimension)
-        if self.system == "US" and equation and dimension in US_COHERENT and not chosen:
+        if self.system == "US" and equation and dimension in US_COHERENT:
             return US_COHERENT[dimension][0]
         if chosen:
             return chosen

@@ -46,7 +46,7 @@ def static_deflection(s: Sheet, m: float, k: float, units: str = "SI"
     handbook form is the one of the package's units: δ_st in mm, or in inches."""
     dst = s.equation("delta_st", "m*g_n/k", "length", m=m, g_n=STANDARD_GRAVITY, k=k,
                      key="static_deflection", key_result=True,
-                     description="Static deflection under the weight (g_n = 9.80665 m/s²)")
+                     description="Static deflection under the weight (g_n: standard gravity)")
     f_check = s.equation("f_n", frequency_from_deflection_formula(), "frequency",
                          g_n=STANDARD_GRAVITY, delta_st=dst,
                          description="Natural frequency from the static deflection"
