@@ -753,6 +753,11 @@ def preferences(written: list[tuple[str, str]], system: str,
             continue
         chosen[dimension] = label
     for dimension, label in (firm or {}).items():
-        if dimension in DIMENSIONS and dimension not in chosen:
-            chosen[dimension] = label
+        if dimension not in DIMENSIONS or dimension in chosen:
+            continue
+        try:
+            _unit_factor(pretty_unit(label), dimension)
+        except Exception:  # a firm's misspelt unit: the default stands
+            continue
+        chosen[dimension] = pretty_unit(label)
     return DisplayUnits(system=system, preferred=tuple(sorted(chosen.items())))

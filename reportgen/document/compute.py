@@ -107,18 +107,27 @@ def job_display(job: Job, plugins: PluginSet) -> str:
     quantity family was first given in (job order), then the firm's ``units.toml`` (a
     table per system, ``length = "mm"``) in its template folder."""
     written = []
-    for spec in job.calcs:
-        reg = plugins.calcs.get(spec.plugin)
-        if reg is None:
-            continue
-        for sp in reg.calc_type.inputs:
-            raw = spec.raw_inputs.get(sp.name)
-            if isinstance(raw, dict):
-                raw = raw.get("value")
-            if sp.name in spec.given and sp.kind == "quantity":
-                written.append((sp.dimension, written_unit(raw)))
+    for part in ("inputs", "criteria"):  # every input first, then the criteria
+        for spec in job.calcs:
+            reg = plugins.calcs.get(spec.plugin)
+            if reg is None:
+                continue
+            specs, raws, given = ((reg.calc_type.inputs, spec.raw_inputs, spec.given)
+                                  if part == "inputs" else
+                                  (reg.calc_type.criteria, spec.raw_criteria,
+                                   spec.criteria_given))
+            for sp in specs:
+                raw = raws.get(sp.name)
+                if isinstance(raw, dict):
+                    raw = raw.get("value")
+                if sp.name in given and sp.kind == "quantity":
+                    written.append((sp.dimension, written_unit(raw)))
     return preferences(written, job.info.units, firm_units(job.template_dir,
                                                             job.info.units)).key
+
+
+#: Largest units.toml a theme may hold (bytes); a larger one is not read.
+FIRM_UNITS_LIMIT = 64 * 1024
 
 
 def firm_units(template_dir: Path | None, system: str) -> dict[str, str]:
@@ -126,9 +135,13 @@ def firm_units(template_dir: Path | None, system: str) -> dict[str, str]:
     if template_dir is None:
         return {}
     path = Path(template_dir) / "units.toml"
-    try:
+    try:  # a theme arrives with a job from anyone: a small regular file, or nothing
+        if path.is_symlink() or not path.is_file() or path.stat().st_size > FIRM_UNITS_LIMIT:
+            return {}
         table = tomllib.loads(path.read_text(encoding="utf-8")).get(system, {})
     except (OSError, ValueError):
+        return {}
+    if not isinstance(table, dict):
         return {}
     return {str(k): str(v) for k, v in table.items() if isinstance(v, str)}
 
