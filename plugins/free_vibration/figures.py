@@ -5,7 +5,6 @@ from __future__ import annotations
 from reportgen_plugins.mechanics import series_values as _r
 
 from reportgen import Figure, Marker, Panel, Series
-
 from reportgen.units import table_display
 
 from .method import FreeResponse, history_times
