@@ -578,6 +578,11 @@ SI_LADDERS: dict[str, tuple[tuple[str, float], ...]] = {
     "time": (("ms", 1e3), ("s", 1.0)),
     "area": (("mm²", 1e6), ("m²", 1.0)),
 }
+#: A US package's small lengths step down to mils (0.001 in), as vibration amplitudes
+#: are written in the trade; nothing else is prefixed in US customary units.
+US_LADDERS: dict[str, tuple[tuple[str, float], ...]] = {
+    "length": (("mil", 1.0 / 2.54e-5), ("in", 1.0 / 0.0254)),
+}
 #: The engineering choice per family where the job gives none (an SI package).
 SI_DEFAULTS = {"length": "mm", "velocity": "mm/s", "acceleration": "m/s²", "stiffness": "kN/m",
                "force_per_length": "kN/m", "force": "kN", "mass": "kg", "mass_length": "kg·mm",
@@ -599,6 +604,7 @@ def pretty_unit(text: str) -> str:
     out = " ".join(text.split())
     for a, b in _PRETTY:
         out = out.replace(a, b)
+    out = re.sub(r"\bmils\b", "mil", out)  # a unit symbol has no plural
     return out.replace(" ", "·")
 
 
@@ -658,10 +664,9 @@ class DisplayUnits:
             return 1.0, ""
         factor = (_us_coherent_factor(dimension) if label in
                   {v[0] for v in US_COHERENT.values()} else _unit_factor(label, dimension))
-        ladder = SI_LADDERS.get(dimension, ())
+        ladder = (SI_LADDERS if self.system == "SI" else US_LADDERS).get(dimension, ())
         labels = [u for u, _ in ladder]
-        if not prefix or self.system != "SI" or label not in labels or value == 0 or (
-                not math.isfinite(value)):
+        if not prefix or label not in labels or value == 0 or not math.isfinite(value):
             return factor, label
         i = labels.index(label)
         size = abs(value)

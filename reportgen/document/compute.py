@@ -107,21 +107,16 @@ def job_display(job: Job, plugins: PluginSet) -> str:
     quantity family was first given in (job order), then the firm's ``units.toml`` (a
     table per system, ``length = "mm"``) in its template folder."""
     written = []
-    for part in ("inputs", "criteria"):  # every input first, then the criteria
-        for spec in job.calcs:
-            reg = plugins.calcs.get(spec.plugin)
-            if reg is None:
-                continue
-            specs, raws, given = ((reg.calc_type.inputs, spec.raw_inputs, spec.given)
-                                  if part == "inputs" else
-                                  (reg.calc_type.criteria, spec.raw_criteria,
-                                   spec.criteria_given))
-            for sp in specs:
-                raw = raws.get(sp.name)
-                if isinstance(raw, dict):
-                    raw = raw.get("value")
-                if sp.name in given and sp.kind == "quantity":
-                    written.append((sp.dimension, written_unit(raw)))
+    for spec in job.calcs:  # inputs only: a limit's unit does not restate the working
+        reg = plugins.calcs.get(spec.plugin)
+        if reg is None:
+            continue
+        for sp in reg.calc_type.inputs:
+            raw = spec.raw_inputs.get(sp.name)
+            if isinstance(raw, dict):
+                raw = raw.get("value")
+            if sp.name in spec.given and sp.kind == "quantity":
+                written.append((sp.dimension, written_unit(raw)))
     return preferences(written, job.info.units, firm_units(job.template_dir,
                                                             job.info.units)).key
 
