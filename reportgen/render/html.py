@@ -91,8 +91,11 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
     def qv(q: Quantity | None, digits: int = 4) -> str:
         return quantity_parts(q, units, digits)[0]
 
-    def qu(q: Quantity | None) -> str:
-        return quantity_parts(q, units)[1]
+    def qu(q: Quantity | None) -> Markup:
+        # a unit never breaks across lines in a narrow column ("lbf/" over "in")
+        label = quantity_parts(q, units)[1]
+        return Markup('<span style="white-space:nowrap">{}</span>').format(label) if (
+            label) else Markup("")
 
     def qfull(q: Quantity | None, digits: int = 4) -> str:
         v, u = quantity_parts(q, units, digits)
