@@ -14,9 +14,9 @@ from collections.abc import Callable, Mapping
 from functools import lru_cache
 from typing import Any
 
-from reportgen.units import format_number
+from reportgen.units import GROUP_SPACE, format_number
 
-__all__ = ["FormulaError", "evaluate", "evaluate_array", "is_scientific", "names_in",
+__all__ = ["FormulaError", "evaluate", "evaluate_array", "has_unit", "is_scientific", "names_in",
            "number_latex", "symbol_latex", "to_latex"]
 
 CONSTANTS = {"pi": math.pi}
@@ -212,10 +212,15 @@ def _prec(node: ast.expr) -> int:
 
 
 def to_latex(expression: str, values: Mapping[str, float] | None = None,
-             symbols: Mapping[str, str] | None = None, digits: int = 6) -> str:
-    """LaTeX of ``expression``: symbolic, or with ``values`` substituted."""
+             symbols: Mapping[str, str] | None = None, digits: int = 6,
+             shown: Mapping[str, str] | None = None) -> str:
+    """LaTeX of ``expression``: symbolic, or with ``values`` substituted, or with ``shown``
+    (LaTeX of each operand as printed, a number and its unit) substituted."""
     tree = _parse(expression)
     symbols = symbols or {}
+    shown = shown or {}
+    if shown and values is None:
+        values = {}
 
     def paren(s: str) -> str:
         return r"\left(" + s + r"\right)"
@@ -223,12 +228,15 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
     def paren_number(s: str) -> str:
         # fixed-size brackets: a stretched one is drawn as an outline, absent from the
         # PDF's text, which would then read 1.27×10⁻⁵² for (1.27×10⁻⁵)²
-        return "(" + s + ")" if is_scientific(s) else paren(s)
+        return "(" + s + ")" if is_scientific(s) or has_unit(s) else paren(s)
 
     def tex(node: ast.expr) -> str:
         if isinstance(node, ast.Constant):
             return number_latex(float(node.value), digits)  # type: ignore[arg-type]
         if isinstance(node, ast.Name):
+            if node.id in shown:
+                text = shown[node.id]
+                return paren_number(text) if text.startswith("-") else text
             if values is not None and node.id in values:
                 text = number_latex(float(values[node.id]), digits)
                 return paren_number(text) if text.startswith("-") else text
@@ -249,8 +257,9 @@ def to_latex(expression: str, values: Mapping[str, float] | None = None,
             if isinstance(op, ast.Pow):
                 # a number in powers of ten keeps its own exponent: (1.27 × 10⁻⁵)², never
                 # 1.27 × 10⁻⁵², which reads as ten to the power −52
-                if is_scientific(left) and not left.startswith(("(", r"\left(")):
-                    left = paren_number(left)
+                if (is_scientific(left) or has_unit(left)) and not left.startswith(
+                        ("(", r"\left(")):
+                    left = paren_number(left)  # (157.1 rad/s)², not 157.1 rad/s²
                 elif _prec(node.left) <= 5 or left.startswith("-"):
                     left = paren(left)
                 return "{" + left + "}^{" + right + "}"
@@ -285,14 +294,21 @@ def _is_fraction(node: ast.expr) -> bool:
     return isinstance(node, ast.BinOp) and isinstance(node.op, ast.Div)
 
 
+def has_unit(latex: str) -> bool:
+    """Whether a printed operand carries its unit (it then needs brackets under a power)."""
+    return r"\mathrm{" in latex and r"\ \mathrm{" in latex
+
+
 def is_scientific(latex: str) -> bool:
     """Whether a printed number is in powers of ten (it then needs brackets under a power)."""
     return r"\times 10^{" in latex
 
 
-def number_latex(value: float, digits: int = 6) -> str:
-    """A number as LaTeX: plain where readable, else ``m \\times 10^{e}``."""
-    text = format_number(value, digits)
+def number_latex(value: float | str, digits: int = 6) -> str:
+    """A number (or its printed text) as LaTeX: plain where readable, else
+    ``m \\times 10^{e}``; groups of digits keep a thin space."""
+    text = value if isinstance(value, str) else format_number(value, digits)
+    text = text.replace(GROUP_SPACE, r"\,")
     if "e" in text:
         mant, exp = text.split("e")
         return f"{mant} \\times 10^{{{int(exp)}}}"

@@ -67,6 +67,9 @@ class Equation:
     result: Quantity
     description: str = ""
     result_key: str = ""  # key in the calc's results, if it is one
+    #: each operand's dimension name ("" where the sheet does not know it), so that the
+    #: renderer substitutes every value in the package's units, with its unit
+    operand_dimensions: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(**_frozen)
@@ -376,6 +379,9 @@ class PackageInfo:
     client: str = ""
     project: str = ""
     units: Literal["SI", "US"] = "SI"
+    #: the display units' key (reportgen.units.DisplayUnits): the system and the unit per
+    #: quantity family the job's inputs chose; "" means the system's defaults
+    display: str = ""
     prepared_by: str = ""
     prepared_date: str = ""
     checked_by: str = ""

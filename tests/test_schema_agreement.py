@@ -100,7 +100,8 @@ WRONG = {"mass": "3 m", "length": "3 kg", "time": "3 Hz", "force": "3 kg",
          "angle": "3 m", "mass_length": "3 kg", "dimensionless": "0.05 kg",
          "moment": "3 kN", "rotational_stiffness": "3 kN/m", "moment_of_inertia": "3 kg*m",
          "pressure": "3 kN", "density": "3 kg/m**2", "area": "3 m", "second_moment_of_area":
-         "3 m**2", "force_per_length": "3 kN"}
+         "3 m**2", "force_per_length": "3 kN", "rotational_speed": "3 m",
+         "level": "3 m"}
 #: other good spellings of each dimension (names, plurals, US units, spaces, exponents)
 SPELLINGS = {
     "mass": ["1200 kilograms", "2650 lb", "1.2 t", "1200kg"],
@@ -124,6 +125,8 @@ SPELLINGS = {
     "area": ["2 m**2", "30 in²", "2 m^2"],
     "second_moment_of_area": ["4.2e8 mm**4", "900 in**4", "0.0004 m⁴"],
     "force_per_length": ["2 kN/m", "150 lbf/ft", "2000 N/m"],
+    "rotational_speed": ["1480 rpm", "1480 RPM", "1480 r/min", "24.7 Hz"],
+    "level": ["-8.1 dB", "20 dB", "3 decibels"],
 }
 
 

@@ -261,7 +261,7 @@ def test_images_drawn_during_the_layout_give_the_same_pdf():
 def _blocks(front):
     from reportgen.render.assets import asset_key, asset_url, iter_asset_blocks
 
-    return {asset_url(asset_key(b, front.doc.info.units)): b
+    return {asset_url(asset_key(b, front.doc.info.display or front.doc.info.units)): b
             for _k, b in iter_asset_blocks(front.doc)}
 
 

@@ -89,7 +89,7 @@ class ForcedResponse(CalcType):
                   dimension="frequency", required=False, positive=True, maximum=1e5),
         InputSpec(name="speed", symbol="N",
                   description="Running speed of the rotating unbalance",
-                  dimension="frequency", required=False, positive=True, maximum=1e4),
+                  dimension="rotational_speed", required=False, positive=True, maximum=1e4),
         InputSpec(name="speed_range", symbol="N_range",
                   description="Speed range of the run-up plot", dimension="frequency",
                   required=False, kind="pair", minimum=0.0, maximum=1e4),
@@ -179,7 +179,7 @@ class ForcedResponse(CalcType):
         p, given, crit = ctx.inputs, ctx.given, ctx.criteria
         kind = excitation_kind(given)
         m, k = p["mass"], p["stiffness"]
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.add(Assumptions(items=text.assumptions(kind, given)),
               Paragraph(title="Method", text=text.method(kind)))
         v = working.write(s, kind, p, given)

@@ -44,8 +44,8 @@ def method(kind: str) -> str:
     return ("The steady-state solution of m·x'' + c·x' + k·x = F(t) for " + law + " is a"
             " harmonic motion at the forcing frequency, X·cos(ωt − φ), whose amplitude and"
             " phase lag follow in closed form from the frequency ratio r = ω/ω_n and the"
-            " damping ratio ζ. Values are substituted in coherent SI units; amplitudes are"
-            " zero-to-peak.")
+            " damping ratio ζ. Each value is substituted in the package's units, with its"
+            " unit; amplitudes are zero-to-peak.")
 
 
 def regime(kind: str, r: float, zeta: float, phi: float, k: float, cw: float,

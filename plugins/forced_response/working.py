@@ -66,7 +66,7 @@ def write(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str]) -> P
                        key="damping_coefficient", description="Damping coefficient")
 
     if kind == "unbalance":
-        f = s.equation("f", "N/60", "frequency", N=p["speed"] * 60.0,
+        f = s.equation("f", "N", "frequency", N=p["speed"],
                        key="forcing_frequency", key_result=True,
                        description="Forcing frequency from the running speed N in rpm"
                                    " (revolutions per minute)")

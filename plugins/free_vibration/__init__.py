@@ -68,7 +68,7 @@ class FreeVibration(CalcType):
         InputSpec(name="max_natural_frequency", symbol="f_max",
                   description="Highest acceptable natural frequency", dimension="frequency",
                   required=False, positive=True),
-        InputSpec(name="max_static_deflection", symbol="delta_max",
+        InputSpec(name="max_static_deflection", symbol="delta_allow",
                   description="Largest acceptable static deflection", dimension="length",
                   required=False, positive=True),
     )
@@ -86,7 +86,7 @@ class FreeVibration(CalcType):
         VerificationCase(id="A4_sdof_free_overdamped", description="Overdamped response",
                          source=RAO.citation, status="formula_confirmed_example_invented"),
         VerificationCase(id="A6_static_deflection_natural_frequency",
-                         description="f_n from static deflection (15.76/√δ[mm])",
+                         description="f_n from static deflection (handbook form √(g_n/δ_st)/2π)",
                          source=THOMSON.citation, status="formula_confirmed_example_invented"),
     )
 
@@ -116,12 +116,12 @@ class FreeVibration(CalcType):
         p = ctx.inputs
         m, k = p["mass"], p["stiffness"]
         x0, v0 = p["initial_displacement"], p["initial_velocity"]
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.add(Assumptions(items=text.assumptions(ctx.given)),
               Paragraph(title="Method", text=text.METHOD))
         wn, fn = working.natural_frequency(s, m, k)
         zeta = working.damping(s, p, ctx.given, m, k)
-        dst, _, _ = working.static_deflection(s, m, k)  # the same f_n two more ways
+        dst, _, _ = working.static_deflection(s, m, k, ctx.units)  # the same f_n two more ways
 
         resp = working.response(s, wn, zeta, x0, v0)
         s.add(Paragraph(title="Regime", text=text.regime(resp)))
@@ -130,7 +130,7 @@ class FreeVibration(CalcType):
         checks.criteria(s, ctx.criteria, fn, dst)
 
         duration = p.get("duration") or default_duration(wn, zeta)
-        s.add(figures.time_history(resp, duration, fn, self.max_points))
+        s.add(figures.time_history(resp, duration, fn, self.max_points, ctx.units))
         return s.output(purpose=self.purpose)
 
     def verify(self, ctx: CalcContext, output: CalcOutput):

@@ -5,21 +5,24 @@ from __future__ import annotations
 from reportgen_plugins.mechanics import series_values as _r
 
 from reportgen import Figure, Marker, Panel, Series
+from reportgen.units import table_display
 
 from .method import FreeResponse, history_times
 
 
-def time_history(resp: FreeResponse, duration: float, fn: float, max_points: int) -> Figure:
+def time_history(resp: FreeResponse, duration: float, fn: float, max_points: int,
+                 units: str = "SI") -> Figure:
     t = history_times(duration, fn, max_points)
     x = resp.displacement(t)
-    panel_series = [Series(x=_r(t), y=_r(x * 1000), label="x(t)", emphasis=True)]
+    scale, unit = table_display(1.0, "length", units)  # mm, or in in a US package
+    panel_series = [Series(x=_r(t), y=_r(x * scale), label="x(t)", emphasis=True)]
     env = resp.envelope(t)
     if env is not None:
-        e = env * 1000
+        e = env * scale
         panel_series += [Series(x=_r(t), y=_r(e), label="decay envelope", style="dashed"),
                          Series(x=_r(t), y=_r(-e), label="", style="dashed")]
     return Figure(key="time-history", caption="Free response from the initial conditions",
                   alt="Displacement against time with the exponential decay envelope",
                   x_label="Time t [s]",
-                  panels=(Panel(series=tuple(panel_series), y_label="Displacement x [mm]",
+                  panels=(Panel(series=tuple(panel_series), y_label=f"Displacement x [{unit}]",
                                 markers=(Marker(x=1 / fn, label="T_n"),)),))

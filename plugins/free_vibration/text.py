@@ -22,7 +22,7 @@ def assumptions(given: frozenset[str]) -> tuple[str, ...]:
 
 
 METHOD = ("The equation of motion m·x'' + c·x' + k·x = 0 is solved in closed form from the"
-          " initial conditions. Values are substituted in coherent SI units.")
+          " initial conditions. Each value is substituted in the package's units, with its unit.")
 
 DECAY = ("Free response x(t) = A·e^(−ζω_n t)·cos(ω_d t + φ). The decay envelope"
          " ±A·e^(−ζω_n t) is shown dashed in the figure.")

@@ -40,18 +40,27 @@ def damping(s: Sheet, inputs, given, m: float, k: float) -> float:
     return zeta
 
 
-def static_deflection(s: Sheet, m: float, k: float) -> tuple[float, float, float]:
-    """δ_st and f_n twice more from it; returns (δ_st, f_n from δ_st, handbook f_n)."""
+def static_deflection(s: Sheet, m: float, k: float, units: str = "SI"
+                      ) -> tuple[float, float, float]:
+    """δ_st and f_n twice more from it; returns (δ_st, f_n from δ_st, handbook f_n). The
+    handbook form is the one of the package's units: δ_st in mm, or in inches."""
     dst = s.equation("delta_st", "m*g_n/k", "length", m=m, g_n=STANDARD_GRAVITY, k=k,
                      key="static_deflection", key_result=True,
-                     description="Static deflection under the weight (g_n = 9.80665 m/s²)")
+                     description="Static deflection under the weight (g_n: standard gravity)")
     f_check = s.equation("f_n", frequency_from_deflection_formula(), "frequency",
                          g_n=STANDARD_GRAVITY, delta_st=dst,
                          description="Natural frequency from the static deflection"
                                      " (same physics, independent arithmetic)")
-    f_hb = s.equation("f_n", "15.76/sqrt(delta_mm)", "frequency", delta_mm=dst * 1000.0,
-                      description="Handbook form with δ_st in mm (constant 15.76 ="
-                                  " √(9806.65)/2π, rounded)")
+    if units == "US":
+        f_hb = s.equation("f_n", "3.13/sqrt(delta_in)", "frequency", delta_in=dst / 0.0254,
+                          dims={"delta_in": "dimensionless"},
+                          description="Handbook form with δ_st as a number of inches"
+                                      " (constant 3.13 = √(386.09)/2π, rounded)")
+    else:
+        f_hb = s.equation("f_n", "15.76/sqrt(delta_mm)", "frequency", delta_mm=dst * 1000.0,
+                          dims={"delta_mm": "dimensionless"},
+                          description="Handbook form with δ_st as a number of millimetres"
+                                      " (constant 15.76 = √(9806.65)/2π, rounded)")
     return dst, f_check, f_hb
 
 

@@ -69,7 +69,7 @@ class Isolation(CalcType):
         InputSpec(name="mass", symbol="m", description="Total supported mass (machine and base)",
                   dimension="mass", positive=True, minimum=1e-3, maximum=1e7),
         InputSpec(name="speed", symbol="N", description="Running speed of the dominant"
-                  " excitation (1500 rpm = 25 Hz)", dimension="frequency", required=False,
+                  " excitation (1500 rpm = 25 Hz)", dimension="rotational_speed", required=False,
                   positive=True, maximum=1e4),
         InputSpec(name="frequency", symbol="f", description="Frequency of the dominant"
                   " excitation", dimension="frequency", required=False, positive=True,
@@ -119,7 +119,7 @@ class Isolation(CalcType):
         InputSpec(name="min_efficiency", symbol="eta_min", description="Required isolation"
                   " efficiency 1 − T at the running speed", default=0.90, minimum=0.01,
                   maximum=0.999, default_note="common practice"),
-        InputSpec(name="max_static_deflection", symbol="delta_max", description="Largest"
+        InputSpec(name="max_static_deflection", symbol="delta_allow", description="Largest"
                   " acceptable static deflection of any mount", dimension="length",
                   required=False, positive=True),
         InputSpec(name="max_passage_transmissibility", symbol="T_pass,max",
@@ -181,7 +181,7 @@ class Isolation(CalcType):
     def compute(self, ctx: CalcContext) -> CalcOutput:
         p, crit, units = ctx.inputs, ctx.criteria, ctx.units
         uneven = "mount_positions" in ctx.given
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.add(Assumptions(items=text.assumptions(ctx.given, uneven)),
               Paragraph(title="Method", text=text.METHOD))
         iso = working.operating_point(s, p, ctx.given)

@@ -35,7 +35,8 @@ def transmissibility_chart(r_op: float, t_op: float, zeta: float, t_req: float,
             " T = 1 at r = √2 and the operating point is marked",
         x_label="Frequency ratio r = f/f_n", x_scale="log", x_range=(0.1, r_hi),
         panels=(Panel(series=tuple(series), y_label="Transmissibility T", y_scale="log",
-                      y_range=(lo, 100.0), hlines=((t_req, "target T_req"),),
+                      y_range=(lo, max(100.0, 3.0 * t_op)),  # the point stays inside
+                      hlines=((t_req, "target T_req"),),
                       markers=(Marker(x=SQRT2, label="r = √2"),
                                Marker(x=r_op, y=t_op, label="operating point"))),))
 
@@ -45,7 +46,7 @@ def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: fl
     g = STANDARD_GRAVITY
     scale, unit = table_display(1.0, "length", units)  # mm, or in for US customary
     d_sqrt2 = 2.0 * g / (2 * math.pi * f) ** 2  # deflection at r = √2
-    d_lo = max(0.8 * d_sqrt2, 1e-5)
+    d_lo = max(min(0.8 * d_sqrt2, 0.8 * d_op), 1e-5)  # the selected point inside the axes
     d_hi = max(0.1, 2.5 * d_op, 2.5 * d_req)
     d = np.geomspace(d_lo, d_hi, 160)
     r = f / frequency_from_deflection(d)
@@ -55,8 +56,9 @@ def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: fl
     if zeta != 0:
         series.append(Series(x=_r(d * scale), y=_r(100.0 * (1.0 - transmissibility(r, 0.0))),
                              label="ζ = 0", style="dashed"))
-    y_lo = 50.0 if eta_op >= 0.6 else 0.0
-    markers = [Marker(x=d_op * scale, y=max(eta_op * 100, y_lo), label="selected"),
+    # where the mounts amplify (η < 0) the axis goes below zero to show the point
+    y_lo = 50.0 if eta_op >= 0.6 else min(0.0, 10.0 * math.floor(eta_op * 10.0 - 0.5))
+    markers = [Marker(x=d_op * scale, y=eta_op * 100, label="selected"),
                Marker(x=d_req * scale, label="required")]  # a line: labels never collide
     return Figure(
         key="selection-chart",

@@ -46,8 +46,8 @@ METHOD = (
     " which is also the ratio of machine to floor motion under base excitation;"
     " isolation efficiency is 1 − T. Isolation exists only above r = √2, where T < 1"
     " for any damping. The mounts the target needs come from solving T(r, ζ) = 1 −"
-    " η_min exactly for the stated damping. Values are substituted in coherent SI"
-    " units (g_n = 9.80665 m/s²).")
+    " η_min exactly for the stated damping. Each value is substituted in the"
+    " package's units, with its unit (g_n is standard gravity, 9.80665 m/s²).")
 
 
 def sharing(p: Mapping[str, Any], loads: tuple[float, ...], units: str) -> str:

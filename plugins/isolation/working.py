@@ -16,7 +16,7 @@ from reportgen_plugins.mechanics import (
 )
 
 from reportgen import Paragraph, Sheet
-from reportgen.units import STANDARD_GRAVITY
+from reportgen.units import STANDARD_GRAVITY, format_number
 
 from . import text
 from .method import required_ratio, second_moments
@@ -62,7 +62,7 @@ class Target:
 def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Isolator:
     m, n, zeta, g = p["mass"], p["mounts"], p["damping_ratio"], STANDARD_GRAVITY
     if "speed" in given:
-        f = s.equation("f", "N/60", "frequency", N=p["speed"] * 60.0,
+        f = s.equation("f", "N", "frequency", N=p["speed"],
                        key="forcing_frequency", key_result=True,
                        description="Forcing frequency (running speed N in rpm)")
     else:
@@ -80,10 +80,14 @@ def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Is
                    description="Frequency ratio")
     t = s.equation("T", transmissibility_formula(), zeta=zeta, r=r, key="transmissibility",
                    key_result=True, description="Transmissibility at the running speed")
+    amplifies = t > 1.0
     eta = s.equation("eta", "1 - T", T=t, key="isolation_efficiency", key_result=True,
-                     description="Isolation efficiency")
-    s.result("isolation_db", -20.0 * math.log10(t), "dimensionless", "L_T",
-             "Isolation in decibels, −20·log10 T (negative: amplification)")
+                     description=(f"Isolation efficiency: none, the mounts amplify"
+                                  f" × {format_number(t, 3)} (T > 1, no isolation)"
+                                  if amplifies else "Isolation efficiency"))
+    s.equation("L_T", "-20*log10(T)", "level", T=t, key="isolation_db",
+               description=("Transmission level, −20·log10 T: negative, an amplification"
+                            if amplifies else "Isolation in decibels, −20·log10 T"))
     return Isolator(f=f, k=k, k_m=km, f_n=fn, delta_st=dst, r=r, T=t, eta=eta)
 
 
@@ -118,6 +122,7 @@ def _stiffness(s: Sheet, p: Mapping[str, Any], given: frozenset[str], m: float, 
 def mount_loads(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...], iso: Isolator,
                 uneven: bool, units: str) -> Loads:
     m, n, g, km = p["mass"], p["mounts"], STANDARD_GRAVITY, iso.k_m
+    s.declare(P_max="force", P_min="force")
     w = s.equation("W", "m*g_n", "force", m=m, g_n=g, key="weight",
                    description="Weight carried by the mounts")
     pmax, pmin = max(loads), min(loads)
@@ -153,6 +158,9 @@ def mount_loads(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...], iso: I
 def _sharing_equation(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...],
                       w: float) -> float:
     pts = np.asarray(p["mount_positions"], dtype=float)
+    s.declare(e_x="length", e_y="length", S_xx="area", S_yy="area", S_xy="area",
+              x_c="length", y_c="length",
+              **{f"{a}_{i + 1}": "length" for i in range(len(pts)) for a in "xy"})
     xc, yc = float(pts[:, 0].mean()), float(pts[:, 1].mean())
     sxx, syy, sxy = second_moments(pts)
     ex, ey = p["cg_x"] - xc, p["cg_y"] - yc
@@ -175,6 +183,7 @@ def _sharing_equation(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...],
 
 def target(s: Sheet, p: Mapping[str, Any], eta_min: float, f: float) -> Target:
     m, n, zeta, g = p["mass"], p["mounts"], p["damping_ratio"], STANDARD_GRAVITY
+    s.declare(eta_min="dimensionless", r_req="dimensionless")
     s.add(Paragraph(title="Mounts the isolation target needs", text=text.TARGET))
     t_req = s.equation("T_req", "1 - eta_min", eta_min=eta_min,
                        description="Largest transmissibility the target allows")

@@ -7,7 +7,7 @@ from typing import Any
 
 import numpy as np
 
-from reportgen.units import format_number, table_display
+from reportgen.units import display_units
 
 #: Decimals a figure series keeps: below a drawing's resolution, and it clears the last-bit
 #: noise that would otherwise change a drawing's bytes (and cache key) from run to run.
@@ -23,6 +23,7 @@ def series_values(values: Any, decimals: int | None = SERIES_DECIMALS) -> tuple[
 
 
 def quantity_text(value: float, dimension: str, units: str, digits: int = 4) -> str:
-    """``value`` (SI) as text in the units an engineer reads in a table: "12.5 mm", "0.49 in"."""
-    shown, unit = table_display(value, dimension, units)
-    return f"{format_number(shown, digits)} {unit}".strip()
+    """``value`` (SI) as text in the package's display units (``units``: "SI", "US" or a
+    display key), prefixed as a table prints it: "12.5 mm", "23.6 µm", "0.49 in"."""
+    shown, unit = display_units(units).show(value, dimension, digits)
+    return f"{shown} {unit}".strip()

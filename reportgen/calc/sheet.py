@@ -8,7 +8,7 @@ A calc type (:mod:`reportgen.calc.spec`) is registered through the
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -67,21 +67,37 @@ class Sheet:
     substitution and the printed result always come from the same numbers.
     """
 
-    def __init__(self) -> None:
+    #: symbols every calc may use without declaring them
+    CONVENTIONAL = {"g_n": "acceleration", "g": "acceleration"}
+
+    def __init__(self, inputs: Iterable[Any] = ()) -> None:
         self._blocks: list[Block] = []
         self._results: dict[str, ResultRow] = {}
         self._checks: list[Check] = []
         self._lists: dict[str, ResultList] = {}
+        self._dims: dict[str, str] = dict(self.CONVENTIONAL)
+        self.declare(inputs)
+
+    def declare(self, inputs: Iterable[Any] = (), **dims: str) -> None:
+        """Tell the sheet what the operand names mean: input specs (their symbols and
+        dimensions) or ``name=dimension``. An equation's own name is known once written."""
+        for spec in inputs:
+            symbol, dimension = getattr(spec, "symbol", ""), getattr(spec, "dimension", "")
+            if symbol and getattr(spec, "kind", "quantity") in ("quantity", "integer"):
+                self._dims.setdefault(symbol, dimension or "dimensionless")
+        self._dims.update(dims)
 
     def add(self, *blocks: Block) -> None:
         self._blocks.extend(blocks)
 
     def equation(self, name: str, expression: str, dimension: str = "dimensionless", *,
                  description: str = "", key: str = "", key_result: bool = False,
-                 symbol: str = "", **operands: float) -> float:
+                 symbol: str = "", dims: Mapping[str, str] | None = None,
+                 **operands: float) -> float:
         """Evaluate ``expression`` with ``operands`` and record it; returns the value.
 
-        With ``key`` the value is also recorded as a result under that key.
+        With ``key`` the value is also recorded as a result under that key. ``dims`` names
+        the dimension of operands the sheet does not know (see :meth:`declare`).
         """
         needed = _formula.names_in(expression)
         missing = needed - operands.keys()
@@ -89,9 +105,13 @@ class Sheet:
             raise _formula.FormulaError(f"formula {expression!r} needs {sorted(missing)}")
         ordered = tuple((n, float(operands[n])) for n in sorted(needed))
         value = _formula.evaluate(expression, dict(ordered))
+        known = {**self._dims, **(dims or {})}
         self._blocks.append(Equation(name=name, expression=expression, operands=ordered,
                                      result=Quantity(value=value, dimension=dimension),
-                                     description=description, result_key=key))
+                                     description=description, result_key=key,
+                                     operand_dimensions=tuple((n, known.get(n, ""))
+                                                              for n, _ in ordered)))
+        self._dims[name] = dimension
         if key:
             self.result(key, value, dimension, symbol or name, description,
                         key_result=key_result)

@@ -8,8 +8,10 @@ from __future__ import annotations
 import dataclasses
 import math
 import platform
+import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
+from pathlib import Path
 from typing import Any
 
 from reportgen._version import __version__
@@ -36,7 +38,7 @@ from reportgen.model import (
     Table,
     VerificationRow,
 )
-from reportgen.units import DIMENSIONS
+from reportgen.units import DIMENSIONS, input_note, preferences, written_unit
 
 VerifyHook = Callable[[RegisteredCalc, CalcContext, CalcOutput], Any]
 
@@ -52,6 +54,7 @@ class Computed:
     #: the operating envelope it was judged over (its output already carries the governed
     #: checks); None for a calc without ranges, tolerances or orders
     envelope: envelope.Outcome | None = None
+    display: str = "SI"  # the display units' key its drawings are made in
 
 
 def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None = None,
@@ -65,8 +68,9 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
     malformed output, and VerificationError when an independent check disagrees.
     """
     computed = []
+    display = job_display(job, plugins)
     for spec in job.calcs:
-        c = compute_calc(spec, plugins.calcs[spec.plugin], job.info.units)
+        c = compute_calc(spec, plugins.calcs[spec.plugin], job.info.units, display)
         if on_computed is not None:
             on_computed(c)
         computed.append(c)
@@ -81,7 +85,8 @@ def compute_document(job: Job, plugins: PluginSet, *, verify: VerifyHook | None 
             software.append((f"calc type {reg.name}", reg.package,
                              reg.calc_type.version))
     check_deviations(job, sections)
-    doc = Document(info=job.info, revision_history=job.revision_history,
+    doc = Document(info=dataclasses.replace(job.info, display=display),
+                   revision_history=job.revision_history,
                    sections=tuple(sections), software=tuple(software),
                    schedule=job.schedule, schedule_source=job.schedule_source,
                    schedule_results=_schedule_results(job, plugins, sections),
@@ -130,7 +135,47 @@ def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
     return err
 
 
-def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
+def job_display(job: Job, plugins: PluginSet) -> str:
+    """The key of the units the package prints in: the job's system, the unit each
+    quantity family was first given in (job order), then the firm's ``units.toml`` (a
+    table per system, ``length = "mm"``) in its template folder."""
+    written = []
+    for spec in job.calcs:  # inputs only: a limit's unit does not restate the working
+        reg = plugins.calcs.get(spec.plugin)
+        if reg is None:
+            continue
+        for sp in reg.calc_type.inputs:
+            raw = spec.raw_inputs.get(sp.name)
+            if isinstance(raw, dict):
+                raw = raw.get("value")
+            if sp.name in spec.given and sp.kind == "quantity":
+                written.append((sp.dimension, written_unit(raw)))
+    return preferences(written, job.info.units, firm_units(job.template_dir,
+                                                            job.info.units)).key
+
+
+#: Largest units.toml a theme may hold (bytes); a larger one is not read.
+FIRM_UNITS_LIMIT = 64 * 1024
+
+
+def firm_units(template_dir: Path | None, system: str) -> dict[str, str]:
+    """A firm's display units for ``system`` from ``units.toml`` in its template folder."""
+    if template_dir is None:
+        return {}
+    path = Path(template_dir) / "units.toml"
+    try:  # a theme arrives with a job from anyone: a small regular file, or nothing
+        if path.is_symlink() or not path.is_file() or path.stat().st_size > FIRM_UNITS_LIMIT:
+            return {}
+        table = tomllib.loads(path.read_text(encoding="utf-8")).get(system, {})
+    except (OSError, ValueError):
+        return {}
+    if not isinstance(table, dict):
+        return {}
+    return {str(k): str(v) for k, v in table.items() if isinstance(v, str)}
+
+
+def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str,
+                 display: str = "") -> Computed:
     """Call the calc's compute once, wrapped so a failure names its plugin; check the
     output is well formed."""
     ctx = calc_context(spec, units)
@@ -146,14 +191,15 @@ def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str) -> Computed:
         raise _failure(reg, spec.id, f"compute returned malformed output: {problem}",
                        "compute")
     if not envelope.wanted(spec):
-        return Computed(spec=spec, reg=reg, ctx=ctx, output=out)
+        return Computed(spec=spec, reg=reg, ctx=ctx, output=out, display=display or units)
 
     def failed(at: str, exc: BaseException) -> Exception:
         return _failure(reg, spec.id, f"compute raised {type(exc).__name__} {at} in the"
                         f" operating envelope: {exc}", "envelope", exc)
 
     env = envelope.evaluate(spec, reg, ctx, out, failed)
-    return Computed(spec=spec, reg=reg, ctx=ctx, output=env.output, envelope=env)
+    return Computed(spec=spec, reg=reg, ctx=ctx, output=env.output, envelope=env,
+                    display=display or units)
 
 
 def finish_section(c: Computed, verify: VerifyHook | None = None) -> Section:
@@ -273,8 +319,11 @@ def _input_rows(specs: tuple[InputSpec, ...], values: Mapping[str, Any],
         named = sources.get(f"{table}.{sp.name}")
         source = "job file" if sp.name in given else (
             "default" + (f" ({sp.default_note})" if sp.default_note else ""))
+        note = input_note(written, sp.dimension) if sp.name in given else ""
+        if note:
+            source = f"{source} ({note})"
         if named:
-            source = named
+            source = named + (f" ({note})" if note else "")
         if sp.kind == "table" or (sp.kind == "criterion" and not isinstance(value, str)):
             continue  # a table of its own (_input_tables)
         if sp.kind in ("choice", "text", "file", "criterion", "texts"):

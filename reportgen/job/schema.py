@@ -31,7 +31,7 @@ from reportgen.job.load import (
     empty_date_allowed,
 )
 from reportgen.job.orders import MAX_ORDER, MAX_ORDERS, has_running_speed
-from reportgen.units import DIMENSIONS, STANDARD_GRAVITY
+from reportgen.units import AMPLITUDE_DIMENSIONS, DIMENSIONS, STANDARD_GRAVITY
 
 SCHEMA_ID = "https://reportgen.invalid/schema/job-1.json"
 
@@ -70,16 +70,18 @@ KNOWN_DIFFERENCES = {
 UNIT_FORMS: dict[str, tuple[str, ...]] = {
     "dimensionless": ("D",),
     "angle": ("D",),
-    "mass": ("M",),
+    "mass": ("M", "weight"),
     "length": ("L",),
     "time": ("T",),
     "force": ("F", "M*L/T2"),
-    "stiffness": ("K", "F/L", "M/T2"),
+    "stiffness": ("K", "F/L", "M/T2", "pound_per_length"),
     "damping": ("F*T/L", "M/T"),
     "velocity": ("V", "L/T"),
     "acceleration": ("A", "L/T2", "L*T-2", "gravity"),
     "frequency": ("H", "1/T", "D/T", "speed"),
     "angular_frequency": ("H", "1/T", "D/T", "speed"),
+    "rotational_speed": ("H", "1/T", "D/T", "speed"),
+    "level": ("decibel",),
     "mass_length": ("M*L", "L*M"),
     "moment": ("F*L", "L*F"),
     "rotational_stiffness": ("F*L/D", "F*L", "L*F"),
@@ -101,6 +103,8 @@ _SQUARE = r"(?:\s*(?:\*\*|\^)\s*(?:2|\(2\))|²)"
 _INVERSE_SQUARE = r"(?:\s*(?:\*\*|\^)\s*(?:-2|\(-2\))|⁻²)"
 _CUBE = r"(?:\s*(?:\*\*|\^)\s*(?:3|\(3\))|³)"
 _FOURTH = r"(?:\s*(?:\*\*|\^)\s*(?:4|\(4\))|⁴)"
+#: an amplitude's convention after its unit ("4.5 mm/s rms", "0.2 mm pk-pk")
+_QUALIFIER = r"(?:\s+(?:pk-pk|p-p|pp|peak-to-peak|pk|peak|0-pk|rms|RMS))?"
 _NUMBER = r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]{1,4})?"
 #: no leading '-' (minimum 0), and a mantissa with a non-zero digit (greater than zero)
 _NOT_NEGATIVE = r"^\s*\+?[0-9.]"
@@ -162,6 +166,12 @@ def _factor(cls: str) -> str:
 def _form(form: str) -> str:
     if form == "gravity":
         return "g"  # the parser reads a lone 'g' for an acceleration as standard gravity
+    if form == "decibel":
+        return r"(?:dB|decibels?)"
+    if form == "weight":
+        return r"(?:lbf|kip|klbf|pound_force|force_pound)"  # read as weight ÷ standard gravity
+    if form == "pound_per_length":
+        return r"(?:lb|pound)" + _DIV + r"(?:in|inch|ft|foot)"  # read as lbf/in, lbf/ft
     if form == "speed":
         # the parser rewrites rpm, rps, cpm and rev(olution)s per time to cycles
         return r"(?:rpm|rps|cpm|(?:rev|revolutions?)" + _DIV + _factor("T") + ")"
@@ -184,7 +194,8 @@ def unit_pattern(dimension: str) -> str:
     numbers and angles in radians)."""
     forms = "|".join(_form(f) for f in UNIT_FORMS[dimension])
     optional = "?" if dimension in ("dimensionless", "angle") else ""
-    return rf"^\s*{_NUMBER}(?:\s*(?:{forms})){optional}\s*$"
+    qualifier = _QUALIFIER if dimension in AMPLITUDE_DIMENSIONS else ""
+    return rf"^\s*{_NUMBER}(?:\s*(?:{forms})){optional}{qualifier}\s*$"
 
 
 @functools.cache

@@ -226,7 +226,7 @@ class Scheduler:
             fut = (self.pool.submit(_verify_remote, c.reg, ctx, output)
                    if key is None or self.verification.get(key) is MISSING else None)
             self._points[id(ctx)] = (ctx, key, fut)
-        for key_, job in asset_jobs(c.output.blocks, c.ctx.units).items():
+        for key_, job in asset_jobs(c.output.blocks, c.display).items():
             if key_ not in self._drawing and key_ not in self._ready:
                 self._queued.setdefault(key_, job)
 
@@ -263,7 +263,7 @@ class Scheduler:
         what is drawn by now, what is pending (with its size where known) and how to draw
         it. What is neither cached nor started is started (or, without a pool, drawn)."""
         self._start_queued()
-        units = doc.info.units
+        units = doc.info.display or doc.info.units
         assets = Assets()
         todo: dict[str, AssetJob] = {}
         kinds: dict[str, AssetJob] = {}

@@ -165,7 +165,7 @@ def drawn_assets(doc: Document, store: Store,
     page asks for it, so the numbers show before the drawings are done."""
     out = Assets()
     drawn: dict[str, bytes] = {}
-    units = doc.info.units
+    units = doc.info.display or doc.info.units
     for kind, block in iter_asset_blocks(doc):
         key = asset_key(block, units)
         if key not in drawn and (later is None or key not in later):

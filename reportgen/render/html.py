@@ -18,7 +18,7 @@ from markupsafe import Markup, escape
 
 from reportgen.formula import _GREEK
 from reportgen.model import BLOCK_TYPES, Check, Document, Matrix, Quantity, VerificationRow
-from reportgen.units import DIMENSIONS, format_number, table_display
+from reportgen.units import DIMENSIONS, display_units, format_number
 
 _GREEK_CHARS = {
     "alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
@@ -49,11 +49,14 @@ def symbol_html(name: str) -> Markup:
     return out
 
 
-def quantity_parts(q: Quantity | None, units: str, digits: int = 4) -> tuple[str, str]:
+def quantity_parts(q: Quantity | None, units: str, digits: int = 4, *,
+                   prefix: bool = True) -> tuple[str, str]:
+    """(number, unit) as a table prints ``q``; ``units`` is a display key ("SI", "US",
+    "SI;length=mm"), ``prefix=False`` keeps a table column's one unit."""
     if q is None:
         return ("", "")
-    value, label = table_display(q.value, q.dimension, units)
-    return readable_number(format_number(value, digits)), label
+    text, label = display_units(units).show(q.value, q.dimension, digits, prefix=prefix)
+    return readable_number(text), label
 
 
 _SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
@@ -105,11 +108,16 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
                                         undefined=jinja2.StrictUndefined, trim_blocks=True,
                                         lstrip_blocks=True, bytecode_cache=_compiled())
 
+    system = display_units(units).system  # templates see "SI" or "US"
+
     def qv(q: Quantity | None, digits: int = 4) -> str:
         return quantity_parts(q, units, digits)[0]
 
-    def qu(q: Quantity | None) -> str:
-        return quantity_parts(q, units)[1]
+    def qu(q: Quantity | None) -> Markup:
+        # a unit never breaks across lines in a narrow column ("lbf/" over "in")
+        label = quantity_parts(q, units)[1]
+        return Markup('<span style="white-space:nowrap">{}</span>').format(label) if (
+            label) else Markup("")
 
     def qfull(q: Quantity | None, digits: int = 4) -> str:
         v, u = quantity_parts(q, units, digits)
@@ -118,7 +126,11 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
     def asset(block: Any) -> str:
         return assets[block]
 
-    def vnum(x: float) -> str:
+    def vnum(x: float, dimension: str = "") -> str:
+        """A verification value, in the package's unit for its dimension (6 figures)."""
+        if dimension in DIMENSIONS:
+            return readable_number(display_units(units).show(x, dimension, 6,
+                                                             prefix=False)[0])
         return format_number(x, 6)
 
     def vrel(row: VerificationRow) -> str:
@@ -131,7 +143,8 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
         return COMPARISON_WORDS.get(c.comparison, c.comparison)
 
     def column_unit(dimension: str) -> str:
-        label = quantity_parts(Quantity(value=1.0, dimension=dimension), units)[1]
+        label = quantity_parts(Quantity(value=1.0, dimension=dimension), units,
+                               prefix=False)[1]
         return f" ({label})" if label else ""
 
     def header_html(text: str) -> Markup:
@@ -157,7 +170,7 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
             return f"{v} {u}".strip()
         if isinstance(cell, (int, float)) and not isinstance(cell, bool):
             return quantity_parts(Quantity(value=float(cell), dimension=dimension or
-                                           "dimensionless"), units, digits)[0]
+                                           "dimensionless"), units, digits, prefix=False)[0]
         return str(cell)
 
     def matrix_cell(m: Matrix, i: int, j: int) -> str:
@@ -176,15 +189,20 @@ def make_env(template_dir: Path | None, units: str, assets: Mapping[Any, str],
         header_html=header_html,
         cell_text=cell_text, matrix_cell=matrix_cell,
         asset=asset, block_kind=lambda b: type(b).__name__, sym=symbol_html, qv=qv, qu=qu,
-        q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=units,
-        dimension_label=lambda d: (DIMENSIONS[d].us_label if units == "US"
-                                   else DIMENSIONS[d].si_label),
-        si_label=lambda d: DIMENSIONS[d].si_label if d in DIMENSIONS else d,
+        q=qfull, vnum=vnum, vrel=vrel, comparison=comparison, units=system,
+        dimension_label=lambda d: display_units(units).family_unit(d),
+        si_label=lambda d: (display_units(units).unit(1.0, d, prefix=False)[1]
+                            if d in DIMENSIONS else d),  # the unit vnum(x, d) is in
         block_types=[t.__name__ for t in BLOCK_TYPES],
     )
     if extra_hook is not None:
         extra_hook(env)
     return env
+
+
+def display_key(doc: Document) -> str:
+    """The key of the units ``doc`` is printed in (its system and the job's choices)."""
+    return doc.info.display or doc.info.units
 
 
 def data_uri(payload: bytes, mime: str = "image/svg+xml") -> str:
@@ -198,7 +216,7 @@ def render_html(doc: Document, assets: Mapping[Any, str], *, template_dir: Path 
     from reportgen.errors import ThemeError
     from reportgen.render.theme import template_failure
 
-    env = make_env(template_dir, doc.info.units, assets, extra_hook)
+    env = make_env(template_dir, display_key(doc), assets, extra_hook)
     refs = references(doc)
     numbers = reference_numbers(doc, refs)
     env.globals.update(references=refs, ref_no=lambda text: numbers.get(text, 0),
@@ -293,6 +311,5 @@ def watermark_uri(review_state: str) -> str:
 def render_preview_frame(doc: Document | None, error: str | None, shown_at: str) -> str:
     """The live preview's banner and check panel (built-in template ``preview.html``,
     never a firm's: the frame is not part of the package)."""
-    units = doc.info.units if doc is not None else "SI"
-    env = make_env(None, units, {}, None)
+    env = make_env(None, display_key(doc) if doc is not None else "SI", {}, None)
     return env.get_template("preview.html").render(doc=doc, error=error, shown_at=shown_at)

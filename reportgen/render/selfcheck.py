@@ -313,7 +313,7 @@ def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None)
             problems.append(f"section title {s.title!r} is missing from the text")
         for r in s.results:
             if r.key_result:
-                value, _ = quantity_parts(r.quantity, doc.info.units)
+                value, _ = quantity_parts(r.quantity, doc.info.display or doc.info.units)
                 if _comparable(value) not in text:
                     problems.append(f"key result {s.calc_id}/{r.key} = {value} is not shown")
     for status in {c.status for _, c in doc.design_checks}:  # information rows have none
