@@ -155,7 +155,9 @@ class BlockFoundation(CalcType):
     def compute(self, ctx: CalcContext) -> CalcOutput:
         p = _method_inputs(ctx.inputs, ctx.given)
         a = working.analysis(p)
-        s = Sheet()
+        s = Sheet(self.inputs + self.criteria)
+        s.declare(b="length", l="length", I_G="moment_of_inertia", I_z="moment_of_inertia",
+                  G_b="velocity", A_max="length")
         s.add(Assumptions(items=text.assumptions(False)),
               Paragraph(title="Method", text=text.METHOD))
         z_g = working.masses(s, p, a)

@@ -211,7 +211,8 @@ class FloorWalking(CalcType):
         p = _with_defaults(p)
         bay = "beam_span" in given
         beta, note = damping(p, given)
-        s = Sheet()
+        s = Sheet(self.inputs + self.criteria)
+        s.declare(C_j="dimensionless", C_g="dimensionless", P_0="force")
         s.add(Assumptions(items=text.assumptions(bay, note)))
         if bay:
             modes = working.bay(s, p, given)

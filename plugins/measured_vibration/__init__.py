@@ -162,7 +162,8 @@ class MeasuredVibration(CalcType):
             raise ValueError(f"mode {mode!r} does not fit the criterion {criterion.name!r}")
         analysis = analysis_of(ctx.inputs, mode == "ppv")
         plan, units = analysis.plan, ctx.units
-        s = Sheet()
+        s = Sheet(self.inputs + self.criteria)
+        s.declare(v_b="velocity", v_lim="velocity")
         s.add(Assumptions(items=tuple(text.assumptions(
             plan.quantity, plan.channels, plan.sample_rate, ctx.inputs.get("averaging_time"),
             (analysis.analysed_from, analysis.analysed_to), mode == "ppv"))),
@@ -215,6 +216,7 @@ def _bands(s: Sheet, analysis, criterion, library, units: str) -> None:
     else:
         k = int(abs(bands.centre - ch.max_band_frequency).argmin())
     s.equation("f_m", "1000*10**(x/10)", "frequency", x=float(bands.index[k]),
+               dims={"x": "dimensionless"},
                description=f"Exact centre of the {bands.nominal[k]:g} Hz band (IEC 61260-1,"
                            " base ten)")
     s.equation("f_1", "f_m*10**(-1/20)", "frequency", f_m=float(bands.centre[k]),

@@ -107,7 +107,7 @@ def modes(a: Analysis, units: str) -> Figure:
                 series=(Series(x=_r(rest[:, i] * ls), y=_r(rest[:, j] * ls), style="dotted"),
                         Series(x=_r(disp[:, i] * ls), y=_r(disp[:, j] * ls), emphasis=True),
                         Series(x=_r(feet[:, i] * ls), y=_r(feet[:, j] * ls), style="points")),
-                title=f"Mode {mv.mode} · {format_number(mv.frequency, 3)} Hz · {view}",
+                title=f"Mode {mv.mode}, {view}\n{format_number(mv.frequency, 3)} Hz",
                 y_label=f"{names[j]} [{lu}]", x_label=f"{names[i]} [{lu}]",
                 equal_aspect=True))
     return Figure(

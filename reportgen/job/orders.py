@@ -1,7 +1,8 @@
 """Excitation orders of a calc with a running speed: ``orders = [1, 2, { order = 9,
 label = "blade pass" }]`` in ``[calc.inputs]``, read and checked here.
 
-A calc type has a running speed when it declares a frequency input named ``speed``.
+A calc type has a running speed when it declares a frequency (or rotational speed) input
+named ``speed``.
 """
 
 from __future__ import annotations
@@ -35,7 +36,7 @@ def has_running_speed(specs: tuple[InputSpec, ...]) -> bool:
     names = {s.name: s for s in specs}
     speed = names.get(SPEED_INPUT)
     return ("orders" not in names and speed is not None and speed.kind == "quantity"
-            and speed.dimension == "frequency")
+            and speed.dimension in ("frequency", "rotational_speed"))
 
 
 def parse_orders(raw: Any) -> tuple[tuple[tuple[float, str], ...], list[tuple[str, str]]]:

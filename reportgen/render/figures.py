@@ -123,13 +123,15 @@ def draw(fig: Figure) -> Any:
                     ax.plot(s.x, s.y, ls=_STYLE[s.style], lw=1.6 if s.emphasis else 1.1, **kw)
             for value, label in panel.hlines:
                 ax.axhline(value, color="#8b1a1a", lw=0.9, ls="-.", label=label or None)
+            row = 0  # the labels of vertical lines, one row each: close lines never collide
             for mk in panel.markers:
                 if mk.y is None:
                     ax.axvline(mk.x, color="#444444", lw=0.8, ls=":")
                     if mk.label:
                         ax.annotate(mk.label, (mk.x, 1.0), xycoords=("data", "axes fraction"),
-                                    xytext=(2, -10), textcoords="offset points", fontsize=7.5,
-                                    color="#333333")
+                                    xytext=(2, -10 - 9 * row), textcoords="offset points",
+                                    fontsize=7.5, color="#333333")
+                        row += 1
                 else:
                     ax.plot([mk.x], [mk.y], marker="D", ms=5, color="#8b1a1a", ls="none")
                     if mk.label:
