@@ -100,3 +100,11 @@ def error_text(exc: BaseException) -> str:
     if isinstance(exc, ReportgenError):
         return str(exc)
     return f"internal error: {type(exc).__name__}: {exc}"
+
+
+def nearest_hint(word: str, options: list[str]) -> str:
+    """`` (did you mean 'x'?)`` for the closest of ``options`` to a misspelt name, or ""."""
+    import difflib
+
+    close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
+    return f" (did you mean '{close[0]}'?)" if close else ""

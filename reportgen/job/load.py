@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
-import difflib
 import math
 import re
 import stat
@@ -21,7 +20,7 @@ from typing import Any
 from reportgen.calc.criteria import CriteriaLibrary, load_criteria
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
-from reportgen.errors import JobError, Problem
+from reportgen.errors import JobError, Problem, nearest_hint
 from reportgen.job.orders import (
     MAX_ENVELOPE_POINTS,
     SPEED_INPUT,
@@ -204,11 +203,6 @@ def file_stem(calc_number: object, revision: object) -> str | None:
     return None if "-" in revision else f"{calc_number}-{revision}"
 
 
-def _nearest(word: str, options: list[str]) -> str:
-    close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
-    return f" (did you mean '{close[0]}'?)" if close else ""
-
-
 def read_job_bytes(path: Path) -> bytes:
     try:
         st = path.stat()
@@ -278,7 +272,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     for key in raw:
         if key not in ("package", "calc", "schedule"):
             v.add(f"unknown top-level table '{key}'"
-                  f"{_nearest(key, ['package', 'calc', 'schedule'])};"
+                  f"{nearest_hint(key, ['package', 'calc', 'schedule'])};"
                   " expected [package], [[calc]] and an optional [schedule]", field=key)
     pkg = raw.get("package")
     if not isinstance(pkg, dict):
@@ -562,7 +556,7 @@ class _Validator:
     def package(self, pkg: Mapping[str, Any], path: Path):
         for key in pkg:
             if key not in PACKAGE_KEYS:
-                self.add(f"unknown field '{key}'{_nearest(key, list(PACKAGE_KEYS))}",
+                self.add(f"unknown field '{key}'{nearest_hint(key, list(PACKAGE_KEYS))}",
                          field=f"package.{key}")
         t = {k: self._text(pkg, k, "package.", req) for k, req in PACKAGE_KEYS.items()
              if PACKAGE_KINDS[k] in ("text", "name")}
@@ -598,7 +592,7 @@ class _Validator:
                 continue
             for key in h:
                 if key not in HISTORY_KEYS:
-                    self.add(f"unknown field '{key}'{_nearest(key, list(HISTORY_KEYS))}",
+                    self.add(f"unknown field '{key}'{nearest_hint(key, list(HISTORY_KEYS))}",
                              field=where + key)
             history.append(RevisionEntry(
                 revision=self._text(h, "revision", where, True),
@@ -647,13 +641,13 @@ class _Validator:
                 continue
             for key in d:
                 if key not in DEVIATION_KEYS:
-                    self.add(f"unknown field '{key}'{_nearest(key, list(DEVIATION_KEYS))}",
+                    self.add(f"unknown field '{key}'{nearest_hint(key, list(DEVIATION_KEYS))}",
                              field=where + key)
             t = {k: self._text(d, k, where, req) for k, req in DEVIATION_KEYS.items()
                  if k != "date"}
             if t["calc"] and t["calc"] not in calc_ids:
                 self.add(f"no calc with id '{t['calc']}' in this job"
-                         f"{_nearest(t['calc'], sorted(calc_ids))}", field=where + "calc")
+                         f"{nearest_hint(t['calc'], sorted(calc_ids))}", field=where + "calc")
             if (t["calc"], t["check"]) in seen:
                 self.add(f"a second deviation for {t['calc']}/{t['check']}",
                          field=where + "check")
@@ -731,7 +725,7 @@ class _Validator:
         before = len(self.problems)
         for key in c:
             if key not in CALC_KEYS:
-                self.add(f"unknown field '{key}'{_nearest(key, sorted(CALC_KEYS))}",
+                self.add(f"unknown field '{key}'{nearest_hint(key, sorted(CALC_KEYS))}",
                          calc=label, field=key)
         if cid is not None and not isinstance(cid, str):
             self.add(f"expected text such as \"pump-p1\", found {type(cid).__name__}"
@@ -767,7 +761,7 @@ class _Validator:
                 broken = [b for b in plugins.broken
                           if b.plugin == plugin or plugin in b.calc_types]
                 extra = f"; that plugin failed to load: {broken[0].error}" if broken else ""
-                self.add(f"unknown calc type '{plugin}'{_nearest(plugin, plugins.names())};"
+                self.add(f"unknown calc type '{plugin}'{nearest_hint(plugin, plugins.names())};"
                          f" known calc types: {', '.join(plugins.names()) or 'none'}{extra}",
                          calc=label, field="plugin")
         inputs_raw = c.get("inputs", {})
@@ -833,7 +827,7 @@ class _Validator:
             if key not in by_name:
                 known = ", ".join(sorted(by_name)) or "none"
                 self.add(f"unknown {table[:-1] if table == 'inputs' else 'criterion'}"
-                         f" '{key}'{_nearest(key, list(by_name))}; this calc type accepts:"
+                         f" '{key}'{nearest_hint(key, list(by_name))}; this calc type accepts:"
                          f" {known}", calc=calc, field=f"{table}.{key}")
         for spec in specs:
             fld = f"{table}.{spec.name}"
@@ -864,7 +858,7 @@ class _Validator:
                 if key not in WRAPPER_KEYS:
                     self.add(f"expected a value, or a table of value, source and tolerance;"
                              f" found dict with unknown key '{key}'"
-                             f"{_nearest(key, list(WRAPPER_KEYS))}", calc=calc, field=fld)
+                             f"{nearest_hint(key, list(WRAPPER_KEYS))}", calc=calc, field=fld)
                     return _REFUSED
             if "value" not in raw:
                 self.add("the value table needs 'value' (and may give 'source' and"
@@ -975,7 +969,7 @@ class _Validator:
             where = f"{fld}[{i}]"
             for key in row:
                 if key not in by_name:
-                    self.add(f"row {i}: unknown column '{key}'{_nearest(key, list(by_name))};"
+                    self.add(f"row {i}: unknown column '{key}'{nearest_hint(key, list(by_name))};"
                              f" the columns are {', '.join(by_name)}", calc=calc,
                              field=f"{where}.{key}")
             out: dict[str, Any] = {}
@@ -1154,7 +1148,7 @@ def _text_value(raw: Any, spec: InputSpec) -> str:
     if spec.kind == "choice":
         if raw not in spec.choices:
             raise UnitProblem(f"{raw!r} is not one of {', '.join(spec.choices)}"
-                              f"{_nearest(raw, list(spec.choices))}")
+                              f"{nearest_hint(raw, list(spec.choices))}")
     elif len(raw) > spec.max_length:
         raise UnitProblem(f"text longer than {spec.max_length} characters")
     return raw

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from reportgen.errors import Problem
+from reportgen.errors import Problem, nearest_hint
 from reportgen.model import ScheduleItem
 
 __all__ = ["RESERVED", "Schedule", "read_schedule"]
@@ -244,7 +244,7 @@ def _rows(reader: _Reader, grid: list[list[Any]], name: str, data: bytes,
         else:
             known = sorted(inputs) + sorted(criteria)
             reader.bad(f"header '{head}' names no input or criterion of calc type"
-                       f" '{reg.name}'{_nearest(key, known)}; its inputs: "
+                       f" '{reg.name}'{nearest_hint(key, known)}; its inputs: "
                        + ", ".join(sorted(inputs)) + "; its criteria: "
                        + (", ".join(sorted(criteria)) or "none"), ref)
     names = [c[1] for c in columns]
@@ -314,13 +314,6 @@ def _rows(reader: _Reader, grid: list[list[Any]], name: str, data: bytes,
         return None
     return Schedule(path=name, sheet=reader.sheet, data=data, calcs=tuple(calcs),
                     items=tuple(items), cells=cells)
-
-
-def _nearest(word: str, options: list[str]) -> str:
-    import difflib
-
-    close = difflib.get_close_matches(word, options, n=1)
-    return f" (did you mean '{close[0]}'?)" if close else ""
 
 
 def _text(value: Any) -> str:
