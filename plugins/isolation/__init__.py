@@ -29,6 +29,8 @@ from . import checks, figures, selection, text, working
 from .method import (
     EXCITATION_INPUTS,
     ISOLATOR_INPUTS,
+    MOUNT_TYPES,
+    dynamic_stiffness,
     forcing_frequency,
     lifted_mounts,
     loads,
@@ -36,6 +38,7 @@ from .method import (
     mount_rows,
     peak_ratio,
     required_ratio,
+    stiffness_ratio,
     total_stiffness,
     transmissibility,
 )
@@ -106,6 +109,14 @@ class Isolation(CalcType):
         InputSpec(name="rated_deflection", symbol="delta_rated", description="Rated"
                   " deflection of the selected mount (maker's data)", dimension="length",
                   required=False, positive=True, maximum=1.0),
+        InputSpec(name="mount_type", symbol="type", description="Kind of mount: steel"
+                  " springs, or elastomer (rubber or neoprene), which is stiffer in"
+                  " vibration than under its static load", kind="choice",
+                  choices=MOUNT_TYPES, default="steel_spring"),
+        InputSpec(name="dynamic_stiffness_ratio", symbol="kappa_d", description="Dynamic to"
+                  " static stiffness ratio k_dyn/k_st of the mounts (required for"
+                  " elastomer)", default=1.0, minimum=1.0, maximum=3.0,
+                  default_note="steel springs: dynamic and static stiffness are equal"),
         selection.CATALOGUE_INPUT,
         InputSpec(name="solid_deflection", symbol="delta_solid", description="Deflection"
                   " of the mount at which the spring goes solid (maker's data)",
@@ -167,11 +178,13 @@ class Isolation(CalcType):
                              "describe the mounts by exactly one of " + ", ".join(
                                  ISOLATOR_INPUTS) + (f"; found {', '.join(isolator)}"
                                                      if isolator else "")))
+        if inputs.get("mount_type") == "elastomer" and "dynamic_stiffness_ratio" not in given:
+            problems.append(("inputs.dynamic_stiffness_ratio", text.RATIO_REQUIRED))
         problems += _layout_problems(inputs, given)
         problems += selection.problems(inputs)
         if not problems:
             f = forcing_frequency(inputs)
-            fn = natural_frequency(total_stiffness(inputs, given), inputs["mass"])
+            fn = natural_frequency(dynamic_stiffness(inputs, given), inputs["mass"])
             if inputs["damping_ratio"] == 0.0 and abs(f / fn - 1.0) < 1e-9:
                 problems.append(("inputs.damping_ratio", "the excitation is at the natural"
                                  " frequency and the damping is zero: the transmissibility is"
@@ -185,10 +198,14 @@ class Isolation(CalcType):
         s.add(Assumptions(items=text.assumptions(ctx.given, uneven)),
               Paragraph(title="Method", text=text.METHOD))
         iso = working.operating_point(s, p, ctx.given)
+        if working.shows_ratio(p):
+            s.add(Note(text=text.ratio_note(p["mount_type"], stiffness_ratio(p))))
         mount = loads(p)
         ld = working.mount_loads(s, p, mount, iso, uneven, units)
         tg = working.target(s, p, crit["min_efficiency"], iso.f)
-        s.add(figures.mount_table(mount_rows(mount, iso.k_m, tg.f_n_req, equal=not uneven),
+        ratio = stiffness_ratio(p)
+        s.add(figures.mount_table(mount_rows(mount, iso.k_m, tg.f_n_req, equal=not uneven,
+                                             ratio=ratio),
                                   p.get("mount_positions"), len(mount), units))
         if uneven and ld.P_min > 0:
             s.add(Note(text=text.per_position_note(ld.P_min, tg.delta_req, tg.k_m_req, units)))
@@ -198,7 +215,8 @@ class Isolation(CalcType):
         s.add(figures.transmissibility_chart(iso.r, iso.T, p["damping_ratio"], tg.T_req,
                                              tg.r_req),
               figures.selection_chart(iso.f, p["damping_ratio"], iso.delta_st, iso.eta,
-                                      tg.delta_req, crit["min_efficiency"], units),
+                                      tg.delta_req, crit["min_efficiency"], units,
+                                      ratio=ratio),
               *(Caution(text=t) for t in text.CAUTIONS))
         if "damping_ratio" not in ctx.given:  # guidance where the damping is assumed
             s.add(Paragraph(title="Typical damping of isolators", text=text.TYPICAL_DAMPING))

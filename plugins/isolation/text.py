@@ -142,3 +142,22 @@ def lifted(lifted_mounts: list[tuple[int, float]]) -> str:
     return (f"the centre of gravity lies {where} the region the mounts can carry in"
             f" compression: {which}. Check cg_x, cg_y and mount_positions, or add or move"
             " mounts")
+
+
+RATIO_REQUIRED = (
+    "elastomer mounts are stiffer in vibration than under their static load: give"
+    " dynamic_stiffness_ratio, the dynamic-to-static stiffness ratio k_dyn/k_st from the"
+    " maker's data (for example 1.4; natural rubber and neoprene commonly 1.2–1.8)")
+
+
+def ratio_note(mount_type: str, ratio: float) -> str:
+    """What the dynamic-to-static stiffness ratio changes, and for steel springs that the
+    stated ratio is used as given."""
+    head = (f"The mounts' dynamic stiffness is κ_d = {format_number(ratio, 3)} times their"
+            " static stiffness.")
+    if mount_type != "elastomer":
+        head += (" A ratio other than 1 is stated for steel springs, whose dynamic and"
+                 " static stiffness are normally equal; it is used as stated.")
+    return (head + " Static deflection and mount loads use the static stiffness (the maker's"
+            " rate); the natural frequency, transmissibility, efficiency and the stiffness the"
+            " target needs use the dynamic stiffness, so that f_n = √(κ_d·g/δ_st)/2π.")
