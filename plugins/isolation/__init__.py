@@ -121,6 +121,10 @@ class Isolation(CalcType):
         InputSpec(name="solid_deflection", symbol="delta_solid", description="Deflection"
                   " of the mount at which the spring goes solid (maker's data)",
                   dimension="length", required=False, positive=True, maximum=1.0),
+        InputSpec(name="run_up_time", symbol="t_run",
+                  description="Time from rest to the running speed at constant"
+                              " acceleration (start-up; run-down taken as no slower)",
+                  dimension="time", required=False, positive=True, maximum=3600.0),
         InputSpec(name="rigid_body_limit", symbol="f_rigid", description="Highest frequency"
                   " at which machine and base act as one rigid body (below the base's first"
                   " flexural mode)", dimension="frequency", required=False, positive=True,
@@ -137,6 +141,10 @@ class Isolation(CalcType):
                   description="Largest acceptable transmissibility while passing through"
                               " resonance at start-up and shut-down", required=False,
                   positive=True, maximum=1e3),
+        InputSpec(name="passage_uses_steady_limits", symbol="pass_steady",
+                  description="The steady-state limit applies to the passage through"
+                              " resonance too (T ≤ 1 − η_min)", kind="choice",
+                  choices=("yes", "no"), default="no"),
         InputSpec(name="min_travel_allowance", symbol="a_travel", description="Travel to"
                   " solid beyond the operating deflection, as a fraction of it",
                   default=0.5, minimum=0.0, maximum=10.0, default_note="common practice"),
@@ -211,7 +219,7 @@ class Isolation(CalcType):
             s.add(Note(text=text.per_position_note(ld.P_min, tg.delta_req, tg.k_m_req, units)))
         selection.write(s, p, mount, tg.delta_req, units)
         peak = working.peak(s, p["damping_ratio"])
-        checks.write(s, p, crit, iso, ld, tg, peak, uneven, units)
+        checks.write(s, p, crit, iso, ld, tg, peak, uneven, units, ctx.given)
         s.add(figures.transmissibility_chart(iso.r, iso.T, p["damping_ratio"], tg.T_req,
                                              tg.r_req),
               figures.selection_chart(iso.f, p["damping_ratio"], iso.delta_st, iso.eta,
