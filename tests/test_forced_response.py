@@ -618,3 +618,21 @@ def test_passage_criterion_makes_a_check_dwell_then_transient():
     c = next(c for c in _blocks(fast, Check) if c.id == "resonance-passage")
     r = _results(fast)
     assert r["displacement_amplitude"] < c.value.value < 0.0075 / (2 * 0.02 * 850)
+
+
+def test_steady_limit_applied_to_passage_makes_a_check():
+    # Rotating unbalance dwelt at resonance: X = U/(2ζm) (Rao §3.7); the flag applies the
+    # steady max_displacement to it. 221 µm against 100 µm fails, against 300 µm passes.
+    inputs = {"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+              "unbalance": "0.0075 kg*m", "speed": "980 rpm"}
+    x_dwell = 0.0075 / (2 * 0.02 * 850)
+    for limit, status in (("100 um", "fail"), ("300 um", "pass")):
+        doc = _doc(inputs, {"max_displacement": limit, "passage_uses_steady_limits": True})
+        c = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
+        assert c.status == status
+        assert c.value.value == pytest.approx(x_dwell, rel=1e-9)
+        assert c.limit.value == pytest.approx(float(limit.split()[0]) * 1e-6)
+    # without a steady displacement limit the flag has nothing to apply: not assessed
+    doc = _doc(inputs, {"passage_uses_steady_limits": "yes"})
+    c = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
+    assert c.status == "info" and "max_displacement" in c.note
