@@ -636,3 +636,15 @@ def test_steady_limit_applied_to_passage_makes_a_check():
     doc = _doc(inputs, {"passage_uses_steady_limits": "yes"})
     c = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
     assert c.status == "info" and "max_displacement" in c.note
+
+
+def test_suspended_floor_near_the_forcing_is_a_failing_check():
+    # 980 rpm = 16.33 Hz; a 30 Hz floor is within a factor 2 of it (factor 2: common
+    # practice, no source): floor flexibility is not modelled by m·x'' + c·x' + k·x = F
+    inputs = {"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+              "unbalance": "0.0075 kg*m", "speed": "980 rpm", "support": "structure"}
+    for floor, status in (("30 Hz", "fail"), ("40 Hz", "pass"), (None, "fail")):
+        doc = _doc({**inputs, **({"support_natural_frequency": floor} if floor else {})})
+        c = next(c for c in _blocks(doc, Check) if c.id == "floor-flexibility")
+        assert c.status == status
+    assert "floor-flexibility" not in _checks(_doc({**inputs, "support": "grade"}))

@@ -525,7 +525,7 @@ def test_contract_builds_a_pdf(tmp_path):
     assert built is not None and built.exit_code == 0
 
 
-@pytest.mark.parametrize("name,code", [("qep-104-chiller-ch1", 0), ("qep-105-genset-g1", 1)])
+@pytest.mark.parametrize("name,code", [("qep-104-chiller-ch1", 1), ("qep-105-genset-g1", 1)])
 def test_sample_jobs_build(tmp_path, capsys, name, code):
     out = tmp_path / "out"
     assert main(["build", str(SAMPLES / f"{name}.toml"), "--out", str(out)]) == code
@@ -538,9 +538,12 @@ def test_sample_jobs_build(tmp_path, capsys, name, code):
 
     text = extract_text(pdf.read_bytes())[1]
     assert "Mount loads, static deflections and natural frequencies" in text
-    if code == 0:
+    if name == "qep-104-chiller-ch1":
+        # the off-centre chiller passes every check but the rocking one, which its model
+        # lacks: a failing check with an accepted deviation (exit 1, fit to issue)
         assert calc["results"]["forcing_frequency"]["value"] == pytest.approx(1480 / 60)
-        assert all(s in ("pass", "info") for s in status.values())
+        assert {k for k, s in status.items() if s == "fail"} == {"rocking-not-modelled"}
+        assert "rigid_body_mounts" in text and "NOT FIT TO ISSUE" not in text
     else:
         assert status["efficiency"] == "fail" and "FAIL" in text
         assert data["package"]["status"] == "fail"
@@ -720,3 +723,42 @@ def test_faster_run_up_peaks_lower():
     slow = _results(_doc({**GENSET, "run_up_time": "20 s"}))["passage_transmissibility"]
     fast = _results(_doc({**GENSET, "run_up_time": "2 s"}))["passage_transmissibility"]
     assert fast < slow
+
+
+# ---------------------------------------------------------------- models the calc lacks
+
+
+def test_rocking_is_flagged_when_loads_spread_or_mounts_are_few():
+    # one vertical mode is exact only with the centre of gravity over the mounts' centroid
+    # (Harris' Shock and Vibration Handbook, Ch. 3: heave and rocking decouple by symmetry);
+    # the 10 % load spread allowed before rocking must be modelled is common practice.
+    checks = {c.id: c for c in _doc(CHILLER).sections[0].checks}
+    rock = checks["rocking-not-modelled"]
+    # hand statics of the 3.6 m × 1.4 m rectangle: P = W/4·(1 + 2·e_x/(a/2)·… ), spread
+    # (P_max − P_min)/(W/4) = 2·(2e_x/a + 2e_y/b) for e = (−250, −80) mm
+    assert rock.value.value == pytest.approx(2 * (2 * 250 / 3600 + 2 * 80 / 1400), rel=1e-9)
+    assert rock.status == "fail" and "rigid_body_mounts" in rock.description
+    centred = {**CHILLER, "cg_x": "1800 mm", "cg_y": "700 mm"}
+    assert _checks(_doc(centred))["rocking-not-modelled"] == "pass"
+    two = _checks(_doc({**GENSET, "mounts": 2}))
+    assert two["rocking-not-modelled"] == "fail"
+    assert "rocking-not-modelled" not in _checks(_doc(GENSET))  # equal sharing, 6 mounts
+
+
+@pytest.mark.parametrize("floor,status", [(None, "fail"), ("12 Hz", "fail"),
+                                          ("45 Hz", "fail"), ("60 Hz", "pass")])
+def test_suspended_floor_needs_its_natural_frequency_apart_from_both(floor, status):
+    # 25 Hz forcing, 8.39 Hz mounted: a floor within a factor 2 of either couples with it
+    # (factor 2: common practice, no source); on grade there is no such check
+    inputs = {**GENSET, "support": "structure"}
+    if floor:
+        inputs["support_natural_frequency"] = floor
+    doc = _doc(inputs)
+    c = next(c for c in doc.sections[0].checks if c.id == "floor-flexibility")
+    assert c.status == status and "Floor flexibility is not modelled" in c.description
+    if floor:
+        f_floor = float(floor.split()[0])
+        fn = _results(doc)["natural_frequency"]
+        assert c.value.value == pytest.approx(
+            min(max(f_floor / x, x / f_floor) for x in (25.0, fn)), rel=1e-12)
+    assert "floor-flexibility" not in _checks(_doc(GENSET))

@@ -6,7 +6,7 @@ isolation efficiency, the mounts the target needs, and each mount's share of the
 
 from __future__ import annotations
 
-from reportgen_plugins.mechanics import natural_frequency
+from reportgen_plugins.mechanics import natural_frequency, support_inputs
 
 from reportgen import (
     Assumptions,
@@ -121,6 +121,7 @@ class Isolation(CalcType):
         InputSpec(name="solid_deflection", symbol="delta_solid", description="Deflection"
                   " of the mount at which the spring goes solid (maker's data)",
                   dimension="length", required=False, positive=True, maximum=1.0),
+        *support_inputs(),
         InputSpec(name="run_up_time", symbol="t_run",
                   description="Time from rest to the running speed at constant"
                               " acceleration (start-up; run-down taken as no slower)",

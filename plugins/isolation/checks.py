@@ -5,11 +5,11 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
-from reportgen_plugins.mechanics import quantity_text
+from reportgen_plugins.mechanics import floor_check, quantity_text
 from reportgen_plugins.mechanics.passage import MAX_CYCLES, run_up_cycles, run_up_peak
 
 from reportgen import Sheet, linear_validity_check
-from reportgen.units import format_number
+from reportgen.units import STANDARD_GRAVITY, format_number
 
 from .method import SQRT2, peak_ratio, transmissibility
 from .working import Isolator, Loads, Target
@@ -55,6 +55,29 @@ def write(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, Any], iso: Isolator
                 limit=p["rigid_body_limit"], comparison="<=", dimension="frequency",
                 note="above it the base flexes and the one-mass model does not hold")
     passage(s, p, crit, iso, tg, peak, zeta, given)
+    rocking(s, p, ld)
+    floor_check(s, p, iso.f, fn)
+
+
+def rocking(s: Sheet, p: Mapping[str, Any], ld: Loads) -> None:
+    """A failing check where the one vertical mode is not enough: fewer than three mounts,
+    or mount loads that differ by more than ROCKING_SPREAD of their mean (the centre of
+    gravity off the mounts' centroid couples heave with rocking)."""
+    n = p["mounts"]
+    what = ("Rocking of the mount set is not modelled: check it with rigid_body_mounts")
+    if n < 3:
+        s.check("rocking-not-modelled", what, status="fail",
+                note=f"{'one mount' if n == 1 else 'two mounts'} cannot keep the machine from"
+                     " rocking; this calc models the vertical mode only")
+    elif "mount_positions" in p:
+        mean = p["mass"] * STANDARD_GRAVITY / n
+        spread = (ld.P_max - ld.P_min) / mean
+        s.check("rocking-not-modelled", what, value=spread, limit=ROCKING_SPREAD,
+                comparison="<=",
+                note="the spread of the mount loads (P_max − P_min)/(W/n) measures how far"
+                     " the centre of gravity lies off the mounts' centroid; beyond"
+                     f" {format_number(ROCKING_SPREAD * 100, 3)} % (common practice) heave"
+                     " and rocking couple and this calc's one vertical mode is not enough")
 
 
 def passage(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, Any], iso: Isolator,
@@ -131,5 +154,7 @@ def rated_data(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, float], iso: I
                      " (common practice)")
 
 
+#: mount loads spread beyond this fraction of their mean: rocking must be modelled
+ROCKING_SPREAD = 0.10
 #: spring rate × rated deflection may differ from the rated load by this fraction
 RATED_DATA_TOLERANCE = 0.10

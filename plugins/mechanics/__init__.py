@@ -1,5 +1,6 @@
 """The mechanics every built-in calc type shares, one definition each: SDOF response
-(``sdof``), figure grids (``spectra``), figure and text values (``display``), damping inputs."""
+(``sdof``), figure grids (``spectra``), figure and text values (``display``), damping inputs,
+the support (``support``)."""
 
 from .display import quantity_text, series_values
 from .inputs import DAMPING_INPUTS, damping_inputs, damping_problems
@@ -23,9 +24,11 @@ from .sdof import (
     transmissibility_formula,
 )
 from .spectra import ratio_grid, resonance_grid
+from .support import FLOOR_SEPARATION, floor_check, support_inputs
 
 __all__ = [
-    "DAMPING_INPUTS", "damping_inputs", "damping_problems",
+    "DAMPING_INPUTS", "FLOOR_SEPARATION", "damping_inputs", "damping_problems", "floor_check",
+    "support_inputs",
     "absolute_phase_lag", "absolute_phase_lag_formula", "amplification_formula",
     "critical_damping_formula", "damping_ratio", "dynamic_amplification",
     "frequency_from_deflection", "frequency_from_deflection_formula", "natural_frequency",
