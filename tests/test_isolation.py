@@ -522,7 +522,8 @@ def test_amplification_below_root_two_fails_both_checks():
 def test_contract_builds_a_pdf(tmp_path):
     built = assert_calc_contract(Isolation(), {"title": "Chiller on four springs",
                                                "inputs": CHILLER}, tmp_path)
-    assert built is not None and built.exit_code == 0
+    # the off-centre chiller's rocking is not modelled: its one failing check
+    assert built is not None and built.exit_code == 1
 
 
 @pytest.mark.parametrize("name,code", [("qep-104-chiller-ch1", 1), ("qep-105-genset-g1", 1)])

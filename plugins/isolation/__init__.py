@@ -6,7 +6,13 @@ isolation efficiency, the mounts the target needs, and each mount's share of the
 
 from __future__ import annotations
 
-from reportgen_plugins.mechanics import natural_frequency, support_inputs
+from reportgen_plugins.mechanics import (
+    mount_type_inputs,
+    mount_type_problems,
+    natural_frequency,
+    stiffness_ratio,
+    support_inputs,
+)
 
 from reportgen import (
     Assumptions,
@@ -29,7 +35,6 @@ from . import checks, figures, selection, text, working
 from .method import (
     EXCITATION_INPUTS,
     ISOLATOR_INPUTS,
-    MOUNT_TYPES,
     dynamic_stiffness,
     forcing_frequency,
     lifted_mounts,
@@ -38,7 +43,6 @@ from .method import (
     mount_rows,
     peak_ratio,
     required_ratio,
-    stiffness_ratio,
     total_stiffness,
     transmissibility,
 )
@@ -109,14 +113,7 @@ class Isolation(CalcType):
         InputSpec(name="rated_deflection", symbol="delta_rated", description="Rated"
                   " deflection of the selected mount (maker's data)", dimension="length",
                   required=False, positive=True, maximum=1.0),
-        InputSpec(name="mount_type", symbol="type", description="Kind of mount: steel"
-                  " springs, or elastomer (rubber or neoprene), which is stiffer in"
-                  " vibration than under its static load", kind="choice",
-                  choices=MOUNT_TYPES, default="steel_spring"),
-        InputSpec(name="dynamic_stiffness_ratio", symbol="kappa_d", description="Dynamic to"
-                  " static stiffness ratio k_dyn/k_st of the mounts (required for"
-                  " elastomer)", default=1.0, minimum=1.0, maximum=3.0,
-                  default_note="steel springs: dynamic and static stiffness are equal"),
+        *mount_type_inputs(),
         selection.CATALOGUE_INPUT,
         InputSpec(name="solid_deflection", symbol="delta_solid", description="Deflection"
                   " of the mount at which the spring goes solid (maker's data)",
@@ -187,8 +184,7 @@ class Isolation(CalcType):
                              "describe the mounts by exactly one of " + ", ".join(
                                  ISOLATOR_INPUTS) + (f"; found {', '.join(isolator)}"
                                                      if isolator else "")))
-        if inputs.get("mount_type") == "elastomer" and "dynamic_stiffness_ratio" not in given:
-            problems.append(("inputs.dynamic_stiffness_ratio", text.RATIO_REQUIRED))
+        problems += mount_type_problems(inputs, given)
         problems += _layout_problems(inputs, given)
         problems += selection.problems(inputs)
         if not problems:

@@ -13,22 +13,22 @@ from reportgen_plugins.mechanics import (
     frequency_from_deflection,
     peak_ratio,
     required_ratio,
+    stiffness_ratio,
     transmissibility,
 )
 
 from reportgen.units import STANDARD_GRAVITY
 
-__all__ = ["COMPARISON_DAMPING", "EXCITATION_INPUTS", "ISOLATOR_INPUTS", "MOUNT_TYPES", "SQRT2",
+__all__ = ["COMPARISON_DAMPING", "EXCITATION_INPUTS", "ISOLATOR_INPUTS", "SQRT2",
            "MountRow", "dynamic_stiffness", "forcing_frequency", "lifted_mounts", "loads",
            "mount_loads", "mount_rows", "peak_ratio", "required_ratio", "second_moments",
-           "stiffness_ratio", "total_stiffness", "transmissibility"]
+           "total_stiffness", "transmissibility"]
 
 SQRT2 = math.sqrt(2.0)
 #: The other damping ratios drawn beside the stated one (typical isolator range).
 COMPARISON_DAMPING = (0.01, 0.05, 0.1, 0.2)
 ISOLATOR_INPUTS = ("stiffness", "stiffness_per_mount", "static_deflection", "natural_frequency")
 EXCITATION_INPUTS = ("speed", "frequency")
-MOUNT_TYPES = ("steel_spring", "elastomer")
 
 
 def total_stiffness(inputs: Mapping[str, Any], given: frozenset[str] | set[str]) -> float:
@@ -43,11 +43,6 @@ def total_stiffness(inputs: Mapping[str, Any], given: frozenset[str] | set[str])
         return float(m * STANDARD_GRAVITY / inputs["static_deflection"])
     return float(m * (2.0 * math.pi * inputs["natural_frequency"]) ** 2
                  / stiffness_ratio(inputs))
-
-
-def stiffness_ratio(inputs: Mapping[str, Any]) -> float:
-    """k_dyn/k_st: 1 unless the job states it (steel springs)."""
-    return float(inputs.get("dynamic_stiffness_ratio", 1.0))
 
 
 def dynamic_stiffness(inputs: Mapping[str, Any], given: frozenset[str] | set[str]) -> float:

@@ -144,12 +144,6 @@ def lifted(lifted_mounts: list[tuple[int, float]]) -> str:
             " mounts")
 
 
-RATIO_REQUIRED = (
-    "elastomer mounts are stiffer in vibration than under their static load: give"
-    " dynamic_stiffness_ratio, the dynamic-to-static stiffness ratio k_dyn/k_st from the"
-    " maker's data (for example 1.4; natural rubber and neoprene commonly 1.2–1.8)")
-
-
 def ratio_note(mount_type: str, ratio: float) -> str:
     """What the dynamic-to-static stiffness ratio changes, and for steel springs that the
     stated ratio is used as given."""

@@ -3,7 +3,15 @@
 the support (``support``)."""
 
 from .display import quantity_text, series_values
-from .inputs import DAMPING_INPUTS, damping_inputs, damping_problems
+from .inputs import (
+    DAMPING_INPUTS,
+    MOUNT_TYPES,
+    damping_inputs,
+    damping_problems,
+    mount_type_inputs,
+    mount_type_problems,
+    stiffness_ratio,
+)
 from .sdof import (
     absolute_phase_lag,
     absolute_phase_lag_formula,
@@ -28,7 +36,8 @@ from .support import FLOOR_SEPARATION, floor_check, support_inputs
 
 __all__ = [
     "DAMPING_INPUTS", "FLOOR_SEPARATION", "damping_inputs", "damping_problems", "floor_check",
-    "support_inputs",
+    "support_inputs", "MOUNT_TYPES", "mount_type_inputs", "mount_type_problems",
+    "stiffness_ratio",
     "absolute_phase_lag", "absolute_phase_lag_formula", "amplification_formula",
     "critical_damping_formula", "damping_ratio", "dynamic_amplification",
     "frequency_from_deflection", "frequency_from_deflection_formula", "natural_frequency",
