@@ -126,7 +126,7 @@ class ForcedResponse(CalcType):
         InputSpec(name="max_transmitted_force", symbol="F_T,max",
                   description="Largest acceptable force amplitude into the support",
                   dimension="force", required=False, positive=True),
-        InputSpec(name="passage_uses_steady_limits", symbol="pass_steady",
+        InputSpec(name="passage_uses_steady_limits", symbol="steady",
                   description="The steady-state displacement limit (max_displacement)"
                               " applies to the passage through resonance too",
                   kind="choice", choices=("yes", "no"), default="no"),

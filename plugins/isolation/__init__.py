@@ -139,7 +139,7 @@ class Isolation(CalcType):
                   description="Largest acceptable transmissibility while passing through"
                               " resonance at start-up and shut-down", required=False,
                   positive=True, maximum=1e3),
-        InputSpec(name="passage_uses_steady_limits", symbol="pass_steady",
+        InputSpec(name="passage_uses_steady_limits", symbol="steady",
                   description="The steady-state limit applies to the passage through"
                               " resonance too (T ≤ 1 − η_min)", kind="choice",
                   choices=("yes", "no"), default="no"),
