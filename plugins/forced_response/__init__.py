@@ -129,7 +129,7 @@ class ForcedResponse(CalcType):
         InputSpec(name="passage_uses_steady_limits", symbol="steady",
                   description="The steady-state displacement limit (max_displacement)"
                               " applies to the passage through resonance too",
-                  kind="choice", choices=("yes", "no"), default="no"),
+                  kind="choice", choices=("yes", "no"), required=False),
     )
     sources = (THOMSON, RAO)
     verification_cases = (

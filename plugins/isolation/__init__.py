@@ -142,7 +142,7 @@ class Isolation(CalcType):
         InputSpec(name="passage_uses_steady_limits", symbol="steady",
                   description="The steady-state limit applies to the passage through"
                               " resonance too (T ≤ 1 − η_min)", kind="choice",
-                  choices=("yes", "no"), default="no"),
+                  choices=("yes", "no"), required=False),
         InputSpec(name="min_travel_allowance", symbol="a_travel", description="Travel to"
                   " solid beyond the operating deflection, as a fraction of it",
                   default=0.5, minimum=0.0, maximum=10.0, default_note="common practice"),
@@ -204,7 +204,8 @@ class Isolation(CalcType):
               Paragraph(title="Method", text=text.METHOD))
         iso = working.operating_point(s, p, ctx.given)
         if working.shows_ratio(p):
-            s.add(Note(text=text.ratio_note(p["mount_type"], stiffness_ratio(p))))
+            s.add(Note(text=text.ratio_note(p.get("mount_type", "steel_spring"),
+                                            stiffness_ratio(p))))
         mount = loads(p)
         ld = working.mount_loads(s, p, mount, iso, uneven, units)
         tg = working.target(s, p, crit["min_efficiency"], iso.f)

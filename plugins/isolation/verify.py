@@ -25,7 +25,7 @@ def second_method(ctx: CalcContext, output: CalcOutput) -> list[VerificationRow]
     p = ctx.inputs
     m, zeta, n = p["mass"], res["damping_ratio"], p["mounts"]
     # the vibration sees the dynamic stiffness (elastomers: κ_d × the static stiffness)
-    ratio = float(p.get("dynamic_stiffness_ratio", 1.0))
+    ratio = float(p.get("dynamic_stiffness_ratio") or 1.0)
     k = res.get("dynamic_stiffness", res["stiffness"])
     c = 2.0 * zeta * math.sqrt(k * m)
     w = 2.0 * math.pi * res["forcing_frequency"]

@@ -270,7 +270,8 @@ def target(s: Sheet, p: Mapping[str, Any], eta_min: float, f: float) -> Target:
 def shows_ratio(p: Mapping[str, Any]) -> bool:
     """The dynamic stiffness is written out for elastomers and for any stated ratio ≠ 1;
     steel springs at ratio 1 print as they always have."""
-    return p.get("mount_type") == "elastomer" or p.get("dynamic_stiffness_ratio", 1.0) != 1.0
+    return (p.get("mount_type") == "elastomer"
+            or (p.get("dynamic_stiffness_ratio") or 1.0) != 1.0)
 
 
 def peak(s: Sheet, zeta: float) -> float:

@@ -34,16 +34,18 @@ MOUNT_TYPES = ("steel_spring", "elastomer")
 
 def mount_type_inputs() -> tuple[InputSpec, ...]:
     """``mount_type`` and ``dynamic_stiffness_ratio`` (k_dyn/k_st, symbol κ_d): elastomers are
-    stiffer in vibration than under their static load; steel springs are not."""
+    stiffer in vibration than under their static load; steel springs are not. Both are
+    optional (steel springs, ratio 1), so a package shows them only where the job states
+    them."""
     return (
         InputSpec(name="mount_type", symbol="type", description="Kind of mount: steel"
                   " springs, or elastomer (rubber or neoprene), which is stiffer in"
-                  " vibration than under its static load", kind="choice",
-                  choices=MOUNT_TYPES, default="steel_spring"),
+                  " vibration than under its static load (steel_spring if not stated)",
+                  kind="choice", choices=MOUNT_TYPES, required=False),
         InputSpec(name="dynamic_stiffness_ratio", symbol="kappa_d", description="Dynamic to"
                   " static stiffness ratio k_dyn/k_st of the mounts (required for"
-                  " elastomer)", default=1.0, minimum=1.0, maximum=3.0,
-                  default_note="steel springs: dynamic and static stiffness are equal"),
+                  " elastomer; 1 if not stated, as for steel springs)", required=False,
+                  minimum=1.0, maximum=3.0),
     )
 
 
@@ -61,4 +63,4 @@ def mount_type_problems(inputs: Mapping[str, Any], given: frozenset[str] | set[s
 
 def stiffness_ratio(inputs: Mapping[str, Any]) -> float:
     """k_dyn/k_st: 1 unless the job states it."""
-    return float(inputs.get("dynamic_stiffness_ratio", 1.0))
+    return float(inputs.get("dynamic_stiffness_ratio") or 1.0)

@@ -19,7 +19,8 @@ def support_inputs() -> tuple[InputSpec, ...]:
     return (
         InputSpec(name="support", symbol="support", description="What carries the mounts:"
                   " grade (a slab on ground, rigid) or structure (a suspended floor or"
-                  " frame)", kind="choice", choices=SUPPORTS, default="grade"),
+                  " frame); grade if not stated", kind="choice", choices=SUPPORTS,
+                  required=False),
         InputSpec(name="support_natural_frequency", symbol="f_floor", description="Lowest"
                   " vertical natural frequency of the supporting structure",
                   dimension="frequency", required=False, positive=True, maximum=1e4),

@@ -201,7 +201,8 @@ class RigidBodyMounts(CalcType):
         s.add(Assumptions(items=text.assumptions(ctx.given, a.model.body.inertia_estimated)),
               Paragraph(title="Method", text=text.METHOD))
         if p.get("mount_type") == "elastomer" or a.stiffness_ratio != 1.0:
-            s.add(Note(text=text.ratio_note(p["mount_type"], a.stiffness_ratio)))
+            s.add(Note(text=text.ratio_note(p.get("mount_type", "steel_spring"),
+                                            a.stiffness_ratio)))
         working.body(s, p, a)
         working.matrices(s, a, units)
         working.modes(s, a)
