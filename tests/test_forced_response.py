@@ -26,6 +26,7 @@ from reportgen.testing import (
     assert_calc_contract,
     compute,
     compute_calc,
+    job_toml,
     make_job,
     result,
     section_results,
@@ -648,3 +649,32 @@ def test_suspended_floor_near_the_forcing_is_a_failing_check():
         c = next(c for c in _blocks(doc, Check) if c.id == "floor-flexibility")
         assert c.status == status
     assert "floor-flexibility" not in _checks(_doc({**inputs, "support": "grade"}))
+
+
+@pytest.mark.parametrize("flag,ok", [(True, True), (False, True), ("yes", True),
+                                     ("maybe", False), (1, False)])
+def test_the_passage_switch_reads_as_a_toml_boolean_in_check_and_schema(tmp_path, flag, ok):
+    # a yes/no switch may be written as TOML true/false (TOML 1.0 booleans); `reportgen
+    # check` and the JSON Schema (jsonschema, draft 2020-12) agree on what is accepted
+    import tomllib
+
+    jsonschema = pytest.importorskip("jsonschema")
+    from reportgen.calc.plugin_set import load_plugins
+    from reportgen.job.schema import job_schema
+
+    job = make_job({"plugin": "forced_response", "inputs": {
+        "mass": "100 kg", "stiffness": "400 kN/m", "damping_ratio": 0.05,
+        "force_amplitude": "500 N", "frequency": "8 Hz"},
+        "criteria": {"passage_uses_steady_limits": flag}})
+    path = tmp_path / "job.toml"
+    path.write_text(job_toml(job))
+    plugins = load_plugins()
+    try:
+        load_job(path, plugins)
+        loaded = True
+    except JobError as exc:
+        loaded = False
+        assert "passage_uses_steady_limits" in str(exc)
+    schema_ok = jsonschema.Draft202012Validator(job_schema(plugins)).is_valid(
+        tomllib.loads(path.read_text()))
+    assert loaded == schema_ok == ok

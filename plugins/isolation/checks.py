@@ -74,10 +74,9 @@ def rocking(s: Sheet, p: Mapping[str, Any], ld: Loads) -> None:
         spread = (ld.P_max - ld.P_min) / mean
         s.check("rocking-not-modelled", what, value=spread, limit=ROCKING_SPREAD,
                 comparison="<=",
-                note="the spread of the mount loads (P_max − P_min)/(W/n) measures how far"
-                     " the centre of gravity lies off the mounts' centroid; beyond"
-                     f" {format_number(ROCKING_SPREAD * 100, 3)} % (common practice) heave"
-                     " and rocking couple and this calc's one vertical mode is not enough")
+                note="mount load spread (P_max − P_min)/(W/n): beyond"
+                     f" {format_number(ROCKING_SPREAD * 100, 3)} % (common practice) heave and"
+                     " rocking couple")
 
 
 def passage(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, Any], iso: Isolator,
@@ -89,8 +88,7 @@ def passage(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, Any], iso: Isolat
     fn = iso.f_n
     where = (f"peak at about {format_number(fn * peak_ratio(zeta), 3)} Hz"
              f" ({format_number(fn * peak_ratio(zeta) * 60, 3)} rpm), reached by a dwell"
-             " at resonance (no run-up time stated: the slowest passage); the machine passes"
-             " it at every start and stop" if zeta > 0
+             " at resonance; the machine passes it at every start and stop" if zeta > 0
              else "undamped mounts: unbounded at resonance; state the isolator's damping")
     if zeta > 0 and "run_up_time" in given:
         peak, where = _run_up(s, p, iso, zeta, peak, where)
