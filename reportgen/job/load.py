@@ -23,10 +23,10 @@ from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem, nearest_hint
 from reportgen.job.orders import (
     MAX_ENVELOPE_POINTS,
-    SPEED_INPUT,
     envelope_points,
     has_running_speed,
     parse_orders,
+    speed_input,
 )
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
 from reportgen.model import Deviation, PackageInfo, RevisionEntry, ScheduleItem
@@ -784,8 +784,9 @@ class _Validator:
             orders, bad = parse_orders(inputs_raw["orders"])
             for fld, msg in bad:
                 self.add(msg, calc=label, field=f"inputs.{fld}")
-            if SPEED_INPUT not in inputs_raw:
-                self.add(f"orders multiply the running speed: give {SPEED_INPUT} (for example"
+            speed = speed_input(ct.inputs)
+            if speed not in inputs_raw:
+                self.add(f"orders multiply the running speed: give {speed} (for example"
                          " \"1480 rpm\")", calc=label, field="inputs.orders")
             inputs_raw = {k: v for k, v in inputs_raw.items() if k != "orders"}
         inputs, given = self._values(inputs_raw, ct.inputs, label, "inputs")
