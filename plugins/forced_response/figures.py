@@ -11,7 +11,7 @@ from reportgen_plugins.mechanics import resonance_grid
 from reportgen_plugins.mechanics import series_values as _series
 
 from reportgen import Band, Figure, Marker, Panel, Series
-from reportgen.units import table_display
+from reportgen.units import axis_unit
 
 from .method import response
 
@@ -23,9 +23,10 @@ def _r(a) -> tuple[float, ...]:
     return _series(a, decimals=None)
 
 
-def _axis(dimension: str, units: str) -> tuple[float, str]:
-    """Factor from SI and unit label for a plotted quantity (mm, mm/s, N or in, in/s, lbf)."""
-    return table_display(1.0, dimension, units)
+def _axis(dimension: str, display: str) -> tuple[float, str]:
+    """Factor from SI and unit label for a plotted quantity, in the package's display units
+    (``display``: its key)."""
+    return axis_unit(display, dimension)
 
 
 def _log_range(y: tuple[float, ...], zeta: float) -> tuple[float, float] | None:
@@ -49,8 +50,8 @@ def _linear_range(y: tuple[float, ...], zeta: float,
 
 def frequency_response(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float,
                        k: float, zeta: float, fn: float, f: float,
-                       band: tuple[float, float], units: str) -> Figure:
-    (lf, lu), (ff, fu) = _axis("length", units), _axis("force", units)
+                       band: tuple[float, float], display: str) -> Figure:
+    (lf, lu), (ff, fu) = _axis("length", display), _axis("force", display)
     rpm = kind == "unbalance"
     scale = 60.0 if rpm else 1.0
     x_hi = max(2.5 * fn, 1.5 * f, p["speed_range"][1] if "speed_range" in p else 0.0)
@@ -110,7 +111,7 @@ def frequency_response(kind: str, p: Mapping[str, Any], given: frozenset[str], m
 
 def run_up(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float, k: float,
            zeta: float, fn: float, f: float, band: tuple[float, float],
-           crit: Mapping[str, Any], units: str) -> Figure:
+           crit: Mapping[str, Any], display: str) -> Figure:
     low, high = p["speed_range"]
     freqs = resonance_grid(low, high, fn, zeta, PLOT_POINTS)
     resp = response(kind, p, given, m, k, zeta, freqs)
@@ -132,7 +133,7 @@ def run_up(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float, k: 
                      markers=markers, bands=bands, hlines=hl,
                      y_range=_linear_range(y, zeta, hl))
 
-    (lf, lu), (vf, vu), (ff, fu) = (_axis(d, units) for d in ("length", "velocity", "force"))
+    (lf, lu), (vf, vu), (ff, fu) = (_axis(d, display) for d in ("length", "velocity", "force"))
     panels = (panel(resp["X"], f"Displacement X [{lu}]", "max_displacement", lf),
               panel(resp["V"], f"Velocity, peak [{vu}]", "max_velocity", vf),
               panel(resp["F_T"], f"Transmitted force F_T [{fu}]", "max_transmitted_force",

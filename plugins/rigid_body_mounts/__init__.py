@@ -206,7 +206,7 @@ class RigidBodyMounts(CalcType):
             working.response(s, p, a)
         s.add(figures.mount_table(a, units))
         checks.write(s, p, crit, a, done, units)
-        s.add(*figures.all_figures(a, p, crit, units))
+        s.add(*figures.all_figures(a, p, crit, ctx.display))
         if a.model.body.inertia_estimated:
             s.add(Caution(text=text.BOX_CAUTION))
         s.add(*(Caution(text=t) for t in text.CAUTIONS))

@@ -45,6 +45,14 @@ class CalcContext:
     #: folder); look one up with ``ctx.criteria_library.get(name)``. It pickles, so a
     #: verification run in a worker process sees the same library.
     criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary)
+    #: the key of the package's display units ("SI;length=µm"): figures and tables show
+    #: their axes in it (``reportgen.units.axis_unit``); the system when not given, so a
+    #: context made by hand keeps working
+    display: str = ""
+
+    def __post_init__(self) -> None:
+        if not self.display:
+            object.__setattr__(self, "display", self.units)
 
     def file_hashes(self) -> dict[str, str]:
         """{input name: SHA-256} of the data files: what the files add to a cache key."""
