@@ -33,7 +33,9 @@ def limit_chart(curve: LimitCurve) -> Figure:
                 f" (shaded). {curve.source}.",
         alt="Log-log plot of the acceleration tolerance against frequency, flat between 4 and"
             " 8 Hz, with the floor's point marked",
-        x_label="Frequency f [Hz]", x_scale="log", x_range=(1.0, 80.0),
+        x_label="Frequency f [Hz]", x_scale="log",
+        x_range=(min(1.0, (curve.point_frequency or 1.0) / 1.5),  # the floor stays inside
+                 max(80.0, (curve.point_frequency or 80.0) * 1.5)),
         panels=(Panel(series=tuple(series), y_label="Peak acceleration [%g]", y_scale="log",
                       y_range=(lo, hi), markers=tuple(markers),
                       bands=(Band(x_low=1.0, x_high=LOW_FREQUENCY_LIMIT,

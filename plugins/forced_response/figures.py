@@ -3,6 +3,7 @@ response over the stated speed range."""
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from typing import Any
 
@@ -29,13 +30,17 @@ def _axis(dimension: str, display: str) -> tuple[float, str]:
     return axis_unit(display, dimension)
 
 
-def _log_range(y: tuple[float, ...], zeta: float) -> tuple[float, float] | None:
+def _log_range(y: tuple[float, ...], zeta: float, point: float) -> tuple[float, float] | None:
     vals = np.array([v for v in y if v > 0])
     if zeta >= 0.0025 or not len(vals):
         return None
-    # undamped or nearly so: cap the peak so the rest of the curve stays readable
+    # undamped or nearly so: cap the peak so the rest of the curve stays readable, yet keep
+    # the operating point inside the axes
     med = float(np.median(vals))
-    return float(vals.min()) * 0.5, med * 300
+    lo, hi = float(vals.min()) * 0.5, med * 300
+    if point > 0 and math.isfinite(point):
+        lo, hi = min(lo, point / 2.0), max(hi, point * 2.0)
+    return lo, hi
 
 
 def _linear_range(y: tuple[float, ...], zeta: float,
@@ -82,11 +87,11 @@ def frequency_response(kind: str, p: Mapping[str, Any], given: frozenset[str], m
     panels = (
         Panel(series=mag_series, y_label=mag_label, y_scale="log", bands=(band_s,),
               markers=(fn_mark, Marker(x=opx, y=mag_op, label="operating point")),
-              y_range=_log_range(mag_series[0].y, zeta)),
+              y_range=_log_range(mag_series[0].y, zeta, mag_op)),
         Panel(series=(Series(x=xs, y=_r(resp["F_T"] * ff), label="", emphasis=True),),
               y_label=f"Transmitted force F_T [{fu}]", y_scale="log", bands=(band_s,),
               markers=(fn_mark, Marker(x=opx, y=float(op["F_T"][0]) * ff)),
-              y_range=_log_range(_r(resp["F_T"] * ff), zeta)),
+              y_range=_log_range(_r(resp["F_T"] * ff), zeta, float(op["F_T"][0]) * ff)),
         Panel(series=tuple(phase_series), y_label="Phase lag φ [°]",
               bands=(band_s,), markers=(fn_mark, Marker(
                   x=opx, y=float(np.degrees(op["phi"][0])))),

@@ -33,7 +33,8 @@ def transmissibility_chart(r_op: float, t_op: float, zeta: float, t_req: float,
                 f" T = {format_number(t_op, 4)}",
         alt="Log-log plot of transmissibility against frequency ratio; the curves cross"
             " T = 1 at r = √2 and the operating point is marked",
-        x_label="Frequency ratio r = f/f_n", x_scale="log", x_range=(0.1, r_hi),
+        x_label="Frequency ratio r = f/f_n", x_scale="log",
+        x_range=(min(0.1, r_op / 1.5), r_hi),  # the operating point stays inside
         panels=(Panel(series=tuple(series), y_label="Transmissibility T", y_scale="log",
                       y_range=(lo, max(100.0, 3.0 * t_op)),  # the point stays inside
                       hlines=((t_req, "target T_req"),),

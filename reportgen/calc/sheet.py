@@ -105,15 +105,23 @@ class Sheet:
         """Evaluate ``expression`` with ``operands`` and record it; returns the value.
 
         With ``key`` the value is also recorded as a result under that key. ``dims`` names
-        the dimension of operands the sheet does not know (see :meth:`declare`).
+        the dimension of operands the sheet does not know (see :meth:`declare`); a named
+        operand whose dimension is nowhere declared raises FormulaError (plain numbers in
+        the expression need none).
         """
         needed = _formula.names_in(expression)
         missing = needed - operands.keys()
         if missing:
             raise _formula.FormulaError(f"formula {expression!r} needs {sorted(missing)}")
+        known = {**self._dims, **(dims or {})}
+        undeclared = sorted(needed - known.keys())
+        if undeclared:  # it would print without a unit: a checker could not redo it
+            raise _formula.FormulaError(
+                f"formula {name} = {expression!r}: no dimension declared for"
+                f" {', '.join(undeclared)} (declare it with Sheet.declare, an input spec or"
+                " dims=...; a pure ratio is 'dimensionless')")
         ordered = tuple((n, float(operands[n])) for n in sorted(needed))
         value = _formula.evaluate(expression, dict(ordered))
-        known = {**self._dims, **(dims or {})}
         self._blocks.append(Equation(name=name, expression=expression, operands=ordered,
                                      result=Quantity(value=value, dimension=dimension),
                                      description=description, result_key=key,
