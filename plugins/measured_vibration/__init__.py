@@ -163,7 +163,7 @@ class MeasuredVibration(CalcType):
         analysis = analysis_of(ctx.inputs, mode == "ppv")
         plan, units = analysis.plan, ctx.display  # figures in the display units
         s = Sheet(self.inputs + self.criteria)
-        s.declare(v_b="velocity", v_lim="velocity")
+        s.declare(v_b="velocity", v_lim="velocity", v_p="velocity", v_g="velocity")
         s.add(Assumptions(items=tuple(text.assumptions(
             plan.quantity, plan.channels, plan.sample_rate, ctx.inputs.get("averaging_time"),
             (analysis.analysed_from, analysis.analysed_to), mode == "ppv"))),
