@@ -14,7 +14,7 @@ from reportgen.document.compute import compute_calc
 from reportgen.errors import PluginError
 from reportgen.formula import FormulaError
 from reportgen.job.load import CalcSpec
-from reportgen.model import Equation
+from reportgen.model import Equation, Figure
 from reportgen.testing import compute, make_job
 
 
@@ -113,3 +113,33 @@ def test_isolation_on_amplifying_mounts_uses_the_same_wording():
     assert "amplification ×" in eqs["eta"].description
     assert "(no isolation)" in eqs["eta"].description
     assert "amplification ×" in eqs["L_T"].description and eqs["L_T"].result.value < 0
+    # its charts: the point is inside the axes and the caption names no negative efficiency
+    figs = {b.key: b for b in doc.sections[0].blocks if isinstance(b, Figure)}
+    chart = figs["selection-chart"]
+    assert "amplification ×" in chart.caption and "η = -" not in chart.caption
+    lo, hi = chart.panels[0].y_range
+    point = next(m for m in chart.panels[0].markers if m.label == "selected")
+    assert lo <= point.y <= hi
+    t_chart = figs["transmissibility"]
+    (x_lo, x_hi), (y_lo, y_hi) = t_chart.x_range, t_chart.panels[0].y_range
+    op = next(m for m in t_chart.panels[0].markers if m.label == "operating point")
+    assert x_lo <= op.x <= x_hi and y_lo <= op.y <= y_hi
+
+
+def test_forced_response_point_stays_inside_a_capped_axis():
+    # nearly undamped (ζ = 0.001) just off resonance: the log axis is capped for the curve's
+    # sake, yet the operating point (|X| = F_0/k·D, D = 1/|1 − r²| nearly, Thomson §3.1)
+    # stays inside it
+    doc = compute(make_job({"plugin": "forced_response",
+                            "inputs": {"mass": "100 kg", "stiffness": "400 kN/m",
+                                       "damping_ratio": 0.001, "force_amplitude": "500 N",
+                                       "frequency": "10.06 Hz"}}))  # the old cap fell below it
+    fig = next(b for b in doc.sections[0].blocks
+               if isinstance(b, Figure) and b.key == "frequency-response")
+    for panel in fig.panels[:2]:
+        if panel.y_range is None:
+            continue
+        lo, hi = panel.y_range
+        for mk in panel.markers:
+            if mk.y is not None:
+                assert lo <= mk.y <= hi, (panel.y_label, mk)

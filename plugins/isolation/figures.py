@@ -6,7 +6,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from reportgen_plugins.mechanics import frequency_from_deflection, ratio_grid
+from reportgen_plugins.mechanics import amplification_text, frequency_from_deflection, ratio_grid
 from reportgen_plugins.mechanics import series_values as _r
 
 from reportgen import Figure, Marker, Panel, Series, Table
@@ -66,8 +66,9 @@ def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: fl
         caption=f"Isolation efficiency against static deflection at"
                 f" {format_number(f * 60, 4)} rpm ({format_number(f, 4)} Hz): selected"
                 f" {format_number(d_op * scale, 3)} {unit},"
-                f" η = {format_number(eta_op * 100, 3)} %;"
-                f" required at least {format_number(d_req * scale, 3)} {unit} for"
+                + (f" η = {format_number(eta_op * 100, 3)} %;" if eta_op >= 0 else
+                   f" {amplification_text(1.0 - eta_op)};")  # a negative η is no isolation
+                + f" required at least {format_number(d_req * scale, 3)} {unit} for"
                 f" {format_number(eta_min * 100, 3)} %",
         alt="Isolation efficiency in percent against static deflection,"
             " rising with deflection; the target line and the selected point are marked",
