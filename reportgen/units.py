@@ -62,6 +62,9 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("frequency", "Hz", "Hz", "Hz", "Hz", "Hz or rpm", "1 / [time]"),
         Dimension("angular_frequency", "rad/s", "rad/s", "rad/s", "rad/s", "rad/s",
                   "1 / [time]"),
+        # an eigenvalue λ = ω² of K·φ = λ·M·φ
+        Dimension("angular_frequency_squared", "rad**2/s**2", "rad²/s²", "rad**2/s**2",
+                  "rad²/s²", "rad**2/s**2", "1 / [time] ** 2"),
         Dimension("angle", "rad", "rad", "deg", "°", "deg", ""),
         Dimension("mass_length", "kg*m", "kg·m", "lb*in", "lb·in", "kg*m or g*mm",
                   "[length] * [mass]"),
