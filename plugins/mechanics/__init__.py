@@ -1,7 +1,7 @@
 """The mechanics every built-in calc type shares, one definition each: SDOF response
 (``sdof``), figure grids (``spectra``), figure and text values (``display``), damping inputs."""
 
-from .display import quantity_text, series_values
+from .display import amplification_text, quantity_text, series_values, transmission_level
 from .inputs import DAMPING_INPUTS, damping_inputs, damping_problems
 from .sdof import (
     absolute_phase_lag,
@@ -25,7 +25,8 @@ from .sdof import (
 from .spectra import ratio_grid, resonance_grid
 
 __all__ = [
-    "DAMPING_INPUTS", "damping_inputs", "damping_problems",
+    "DAMPING_INPUTS", "amplification_text", "damping_inputs", "damping_problems",
+    "transmission_level",
     "absolute_phase_lag", "absolute_phase_lag_formula", "amplification_formula",
     "critical_damping_formula", "damping_ratio", "dynamic_amplification",
     "frequency_from_deflection", "frequency_from_deflection_formula", "natural_frequency",

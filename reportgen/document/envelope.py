@@ -39,6 +39,7 @@ from reportgen.model import (
 from reportgen.units import (
     DIMENSIONS,
     UnitProblem,
+    axis_unit,
     format_number,
     parse_quantity,
     table_display,
@@ -452,12 +453,13 @@ def envelope_figure(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
     dim = main.value.dimension
     factor, xunit = _written_unit(spec, r, _dimension(spec, reg, r))
 
+    yfactor, ylabel = axis_unit(ctx.display, dim)
+
     def y(c: Check | None) -> float:
         if c is None or c.value is None or not math.isfinite(c.value.value):
             return math.nan
-        return table_display(c.value.value, dim, ctx.units)[0]
+        return c.value.value * yfactor
 
-    ylabel = table_display(1.0, dim, ctx.units)[1]
     others_at = tuple(point[o] for o in ranges if o != r)
     series, fills = [], []
     labels = dict(spec.orders)
@@ -483,9 +485,8 @@ def envelope_figure(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
     g = main.governing
     assert g is not None and g.value is not None
     gx = point[r] / factor
-    gy = table_display(g.value.value, dim, ctx.units)[0]
-    limit = [] if main.limit is None else [
-        (table_display(main.limit.value, dim, ctx.units)[0], "criterion")]
+    gy = g.value.value * yfactor
+    limit = [] if main.limit is None else [(main.limit.value * yfactor, "criterion")]
     unit = f" ({ylabel})" if ylabel else ""
     return Figure(
         key="operating-envelope",
