@@ -11,6 +11,7 @@ from __future__ import annotations
 import ast
 import math
 from collections.abc import Callable, Mapping
+from dataclasses import dataclass
 from functools import lru_cache
 from typing import Any
 
@@ -78,16 +79,29 @@ def _names(expression: str) -> frozenset[str]:
                      - set(CONSTANTS))
 
 
-def evaluate(expression: str, operands: Mapping[str, float]) -> float:
-    """Evaluate ``expression`` with ``operands`` (plain floats)."""
+@dataclass(frozen=True)
+class _Arithmetic:
+    """What the operators and functions of the grammar mean: on floats (exact, checked) or
+    elementwise on numpy arrays (for a figure's curve)."""
+
+    operand: Callable[[Any], Any]
+    add: Callable[[Any, Any], Any]
+    sub: Callable[[Any, Any], Any]
+    div: Callable[[Any, Any], Any]
+    pow: Callable[[Any, Any], Any]
+    call: Callable[[str, list[Any]], Any]
+
+
+def _walk(expression: str, operands: Mapping[str, Any], arith: _Arithmetic) -> Any:
+    """The one evaluator of the grammar :func:`_parse` admits."""
     tree = _parse(expression)
 
-    def ev(node: ast.expr) -> float:
+    def ev(node: ast.expr) -> Any:
         if isinstance(node, ast.Constant):
             return float(node.value)  # type: ignore[arg-type]  # _parse admits numbers only
         if isinstance(node, ast.Name):
             if node.id in operands:
-                return float(operands[node.id])
+                return arith.operand(operands[node.id])
             if node.id in CONSTANTS:
                 return CONSTANTS[node.id]
             raise FormulaError(f"formula {expression!r} needs operand {node.id!r}")
@@ -98,19 +112,30 @@ def evaluate(expression: str, operands: Mapping[str, float]) -> float:
             a, b = ev(node.left), ev(node.right)
             op = node.op
             if isinstance(op, ast.Add):
-                return _sum(a, b)
+                return arith.add(a, b)
             if isinstance(op, ast.Sub):
-                return _sum(a, -b)
+                return arith.sub(a, b)
             if isinstance(op, ast.Mult):
                 return a * b
             if isinstance(op, ast.Div):
-                return a / b
-            return a**b
+                return arith.div(a, b)
+            return arith.pow(a, b)
         assert isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
-        return float(FUNCTIONS[node.func.id](*(ev(a) for a in node.args)))
+        return arith.call(node.func.id, [ev(a) for a in node.args])
 
+    return ev(tree)
+
+
+_SCALAR = _Arithmetic(
+    operand=float, add=lambda a, b: _sum(a, b), sub=lambda a, b: _sum(a, -b),
+    div=lambda a, b: a / b, pow=lambda a, b: a**b,
+    call=lambda name, args: float(FUNCTIONS[name](*args)))
+
+
+def evaluate(expression: str, operands: Mapping[str, float]) -> float:
+    """Evaluate ``expression`` with ``operands`` (plain floats)."""
     try:
-        value = ev(tree)
+        value = _walk(expression, operands, _SCALAR)
     except (ZeroDivisionError, ValueError, OverflowError) as exc:
         raise FormulaError(f"formula {expression!r} cannot be evaluated: {exc}") from None
     if isinstance(value, complex) or not math.isfinite(value):
@@ -138,50 +163,32 @@ _ARRAY_FUNCTIONS = {
 }
 
 
-def evaluate_array(expression: str, operands: Mapping[str, Any]) -> Any:
-    """Evaluate ``expression`` elementwise over numpy arrays (operands broadcast), so the
-    one expression that is printed also draws the curve a figure plots. Values outside
-    a function's domain become NaN rather than an error (a curve may cross them)."""
-    import numpy as np
+@lru_cache(maxsize=1)
+def _array_arithmetic() -> _Arithmetic:
+    import numpy as np  # only a figure's curve needs numpy here
 
-    tree = _parse(expression)
-
-    def ev(node: ast.expr) -> Any:
-        if isinstance(node, ast.Constant):
-            return float(node.value)  # type: ignore[arg-type]  # _parse admits numbers only
-        if isinstance(node, ast.Name):
-            if node.id in operands:
-                return np.asarray(operands[node.id], dtype=float)
-            if node.id in CONSTANTS:
-                return CONSTANTS[node.id]
-            raise FormulaError(f"formula {expression!r} needs operand {node.id!r}")
-        if isinstance(node, ast.UnaryOp):
-            v = ev(node.operand)
-            return -v if isinstance(node.op, ast.USub) else v
-        if isinstance(node, ast.BinOp):
-            a, b = ev(node.left), ev(node.right)
-            op = node.op
-            if isinstance(op, ast.Add):
-                return a + b
-            if isinstance(op, ast.Sub):
-                return a - b
-            if isinstance(op, ast.Mult):
-                return a * b
-            if isinstance(op, ast.Div):
-                return np.divide(a, b)
-            return np.power(a, b)
-        assert isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
-        fn = getattr(np, _ARRAY_FUNCTIONS[node.func.id])
-        args = [ev(a) for a in node.args]
-        if node.func.id in ("min", "max") and len(args) > 2:
+    def call(name: str, args: list[Any]) -> Any:
+        fn = getattr(np, _ARRAY_FUNCTIONS[name])
+        if name in ("min", "max") and len(args) > 2:
             out = args[0]
             for a in args[1:]:
                 out = fn(out, a)
             return out
         return fn(*args)
 
+    return _Arithmetic(operand=lambda v: np.asarray(v, dtype=float),
+                       add=lambda a, b: a + b, sub=lambda a, b: a - b, div=np.divide,
+                       pow=np.power, call=call)
+
+
+def evaluate_array(expression: str, operands: Mapping[str, Any]) -> Any:
+    """Evaluate ``expression`` elementwise over numpy arrays (operands broadcast), so the
+    one expression that is printed also draws the curve a figure plots. Values outside
+    a function's domain become NaN rather than an error (a curve may cross them)."""
+    import numpy as np
+
     with np.errstate(all="ignore"):
-        return ev(tree)
+        return _walk(expression, operands, _array_arithmetic())
 
 
 def symbol_latex(name: str) -> str:

@@ -463,6 +463,38 @@ class Document:
     def section_of(self, calc_id: str) -> Section | None:
         return next((s for s in self.sections if s.calc_id == calc_id), None)
 
+    def sheet_working(self, section: Section) -> tuple[Equation, ...]:
+        """The key equations of one schedule item's sheet: those that lead to a result the
+        schedule shows or to a value a check compares, with every equation they use, in
+        the section's order (all of them when none is found). The item's full working is
+        its own package (``--split``)."""
+        eqs = [b for b in section.blocks if isinstance(b, Equation)]
+        wanted = set(self.schedule_results)
+        values = [c.value.value for c in section.checks if c.value is not None]
+
+        def seed(e: Equation) -> bool:
+            v = e.result.value
+            return e.result_key in wanted or any(
+                v == x or abs(v - x) <= 1e-12 * max(abs(v), abs(x)) for x in values)
+
+        keep = {i for i, e in enumerate(eqs) if seed(e)}
+        todo = list(keep)
+        while todo:  # each operand's latest equation before its use
+            i = todo.pop()
+            for name, _ in eqs[i].operands:
+                j = next((j for j in range(i - 1, -1, -1) if eqs[j].name == name), None)
+                if j is not None and j not in keep:
+                    keep.add(j)
+                    todo.append(j)
+        return tuple(e for i, e in enumerate(eqs) if i in keep) if keep else tuple(eqs)
+
+    def sheet_results(self, section: Section) -> tuple[ResultRow, ...]:
+        """The key results one schedule item's sheet shows: those its key working
+        computes (see :meth:`sheet_working`) and those the schedule's summary shows."""
+        keys = {e.result_key for e in self.sheet_working(section)} | set(
+            self.schedule_results)
+        return tuple(r for r in section.results if r.key_result and r.key in keys)
+
     @property
     def schedule_by_tag(self) -> tuple[ScheduleItem, ...]:
         """The schedule's rows in the order of their tags (P-2 before P-10)."""

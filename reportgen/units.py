@@ -62,6 +62,9 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("frequency", "Hz", "Hz", "Hz", "Hz", "Hz or rpm", "1 / [time]"),
         Dimension("angular_frequency", "rad/s", "rad/s", "rad/s", "rad/s", "rad/s",
                   "1 / [time]"),
+        # an eigenvalue λ = ω² of K·φ = λ·M·φ
+        Dimension("angular_frequency_squared", "rad**2/s**2", "rad²/s²", "rad**2/s**2",
+                  "rad²/s²", "rad**2/s**2", "1 / [time] ** 2"),
         Dimension("angle", "rad", "rad", "deg", "°", "deg", ""),
         Dimension("mass_length", "kg*m", "kg·m", "lb*in", "lb·in", "kg*m or g*mm",
                   "[length] * [mass]"),
@@ -665,6 +668,8 @@ class DisplayUnits:
         factor = (_us_coherent_factor(dimension) if label in
                   {v[0] for v in US_COHERENT.values()} else _unit_factor(label, dimension))
         ladder = (SI_LADDERS if self.system == "SI" else US_LADDERS).get(dimension, ())
+        if label not in [u for u, _ in ladder]:  # an SI unit the job gave a US package
+            ladder = SI_LADDERS.get(dimension, ())
         labels = [u for u, _ in ladder]
         if not prefix or label not in labels or value == 0 or not math.isfinite(value):
             return factor, label
@@ -721,6 +726,12 @@ def display_units(key: str) -> DisplayUnits:
     pairs = tuple(tuple(p.split("=", 1)) for p in prefs if "=" in p)
     return DisplayUnits(system=system if system in ("SI", "US") else "SI",
                         preferred=pairs)  # type: ignore[arg-type]
+
+
+def axis_unit(display: str, dimension: str) -> tuple[float, str]:
+    """(SI value → shown factor, unit label) of a figure axis or a table column: the one unit
+    the package shows ``dimension`` in (``display``: a display key, "SI" or "US")."""
+    return display_units(display).unit(1.0, dimension, prefix=False)
 
 
 #: Families a job's own unit sets for the whole package (a frequency given in rpm does

@@ -82,7 +82,7 @@ class _OffByOne(CalcType):
     inputs = (InputSpec(name="mass", symbol="m", description="Mass", dimension="mass"),)
 
     def compute(self, ctx):
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.equation("w", "m*g_n", "force", key="weight", key_result=True, m=ctx.inputs["mass"],
                    g_n=9.80665)
         return s.output("Weight")

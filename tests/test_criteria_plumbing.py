@@ -136,6 +136,31 @@ def test_a_firm_s_own_curves_come_from_its_template_folder(plugins, tmp_path):
     assert doc.sections[0].results[0].quantity.value == pytest.approx(8e-6)
 
 
+def test_a_firm_s_curve_travels_with_the_package_and_reruns_without_the_firm_folder(
+        plugins, tmp_path):
+    """A package must re-run years later (archival): a curve from the firm's folder is
+    embedded at criteria/<file> beside the job, and the archived job (loaded from its own
+    unpacked folder, as verify does) reads the same curve back."""
+    firm = tmp_path / "firm"
+    (firm / "criteria").mkdir(parents=True)
+    (firm / "criteria" / "lab.csv").write_text(FIRM_CSV, encoding="utf-8")
+    job = load_job(_job(tmp_path, "IMG-FLOOR-1", template_dir="firm"), plugins)
+    (embedded,) = [a for a in job.attachments if a.path == "criteria/lab.csv"]
+    assert embedded.data == FIRM_CSV.encode("utf-8")
+    built = compute_document(job, plugins)
+    unpacked = tmp_path / "unpacked"  # what load_embedded_job writes, without the firm
+    (unpacked / "criteria").mkdir(parents=True)
+    (unpacked / "criteria" / "lab.csv").write_bytes(embedded.data)
+    (unpacked / "job.toml").write_bytes(job.source)
+    again = load_job(unpacked / "job.toml", plugins, archived=True)
+    rerun = compute_document(again, plugins)
+    assert [r.quantity for r in rerun.sections[0].results] == [
+        r.quantity for r in built.sections[0].results]
+    # a built-in curve embeds nothing
+    plain = load_job(_job(tmp_path, "VC-C"), plugins)
+    assert not [a for a in plain.attachments if a.path.startswith("criteria/")]
+
+
 def test_a_broken_or_clashing_firm_file_is_an_error_naming_it(plugins, tmp_path):
     firm = tmp_path / "firm"
     (firm / "criteria").mkdir(parents=True)

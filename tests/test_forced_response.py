@@ -571,16 +571,21 @@ def test_us_customary_package_plots_in_inches_and_pounds_force():
     # 1 in = 25.4 mm exactly, 1 lbf = 4.4482216152605 N (international definitions).
     calc = _calc({"mass": "100 kg", "stiffness": "400 kN/m", "damping_ratio": 0.05,
                   "force_amplitude": "500 N", "frequency": "8 Hz"})
+    in_lbf = _calc({"mass": "100 kg", "stiffness": "400 kN/m", "damping_ratio": 0.05,
+                    "force_amplitude": f"{500 / 4.4482216152605} lbf", "frequency": "8 Hz"})
     si = compute(make_job([calc]))
-    us = compute(make_job([calc], units="US"))
-    fig_si, fig_us = (next(b for b in _blocks(d, Figure)) for d in (si, us))
+    us = compute(make_job([in_lbf], units="US"))
+    us_n = compute(make_job([calc], units="US"))
+    fig_si, fig_us, fig_us_n = (next(b for b in _blocks(d, Figure)) for d in (si, us, us_n))
     assert fig_us.panels[0].y_label == "Displacement X [in]"
     assert fig_us.panels[1].y_label.endswith("[lbf]")
+    assert fig_si.panels[1].y_label.endswith("[N]")  # the unit the job gave the force in
+    assert fig_us_n.panels[1].y_label.endswith("[N]")  # ... kept in a US package (issue 16)
     assert fig_us.panels[0].series[0].y[50] == pytest.approx(
         fig_si.panels[0].series[0].y[50] / 25.4, rel=1e-9)
     assert fig_us.panels[1].series[0].y[50] == pytest.approx(
         fig_si.panels[1].series[0].y[50] / 4.4482216152605, rel=1e-9)
-    assert _results(us) == _results(si)  # results stay SI whatever the display
+    assert _results(us_n) == _results(si)  # results stay SI whatever the display
 
 
 def test_rms_criterion_is_compared_with_the_rms_value():

@@ -78,7 +78,9 @@ def test_a2_undamped_amplitude_phase(check_cases):
 def _figure_history(doc):
     fig = next(b for b in doc.sections[0].blocks if type(b).__name__ == "Figure")
     s = fig.panels[0].series[0]
-    return np.array(s.x), np.array(s.y) / 1000.0
+    # the axis is in the unit the job gave lengths in (SI prefixes, by definition)
+    unit = fig.panels[0].y_label.rsplit("[", 1)[1].rstrip("]")
+    return np.array(s.x), np.array(s.y) * {"m": 1.0, "mm": 1e-3, "µm": 1e-6}[unit]
 
 
 @pytest.mark.parametrize("case_id", ["A3_sdof_free_critically_damped", "A4_sdof_free_overdamped"])

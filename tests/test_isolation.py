@@ -326,7 +326,8 @@ def test_uneven_sharing_in_the_package_matches_hand_statics():
                         rel_tol=1e-12)
     table = _blocks(doc, Table)[0]
     assert [row[0] for row in table.rows] == ["1", "2", "3", "4"]
-    assert table.rows[0][3] == "9832"  # N, 4 significant figures
+    assert table.header[3] == "Load [kN]"  # the package's force unit (SI default, issue 16)
+    assert table.rows[0][3] == "9.832"  # kN, 4 significant figures
     checks = _checks(doc)
     assert checks["rated-load"] == "pass" and checks["rated-deflection"] == "pass"
     assert checks["max-static-deflection"] == "pass"
@@ -551,8 +552,17 @@ def test_sample_jobs_build(tmp_path, capsys, name, code):
 
 
 def test_us_customary_labels_in_the_table_and_chart():
-    # display units only: 1 in = 25.4 mm exactly (NIST SP 811); the results stay SI
-    doc = compute(make_job([_calc(CHILLER)], units="US"))
+    # display units only: 1 in = 25.4 mm exactly (NIST SP 811); the results stay SI. The
+    # chiller given in inches and pounds-force (a job's own units are kept, issue 16)
+    def inch(mm: str) -> str:
+        return f"{float(mm.split()[0]) / 25.4} in"
+
+    chiller_us = {**CHILLER, "mount_positions": [[inch(x), inch(y)]
+                                                 for x, y in CHILLER["mount_positions"]],
+                  "cg_x": inch(CHILLER["cg_x"]), "cg_y": inch(CHILLER["cg_y"]),
+                  "rated_load_per_mount": f"{11e3 / 4.4482216152605} lbf",
+                  "rated_deflection": inch(CHILLER["rated_deflection"])}
+    doc = compute(make_job([_calc(chiller_us)], units="US"))
     table = _blocks(doc, Table)[0]
     assert table.header[1] == "x [in]" and table.header[3] == "Load [lbf]"
     assert math.isclose(float(table.rows[2][1]), 3600 / 25.4, rel_tol=5e-4)

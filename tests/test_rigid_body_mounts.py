@@ -395,3 +395,23 @@ def test_elastomer_ratio_scales_every_mode_by_its_root_and_leaves_the_statics(rg
     with pytest.raises(JobError, match="dynamic_stiffness_ratio"):
         compute(make_job({**calc, "inputs": {**calc["inputs"], "mount_type": "elastomer"}}),
                 rg_plugins)
+
+
+def test_running_speed_takes_excitation_orders(rg_plugins):
+    """Issue 17: a calc type with a running speed takes orders; for rigid_body_mounts the
+    speed is `running_speed`. Each mode must sit below the excitation / r_min (r_min = √2,
+    the isolation threshold of T = 1, Thomson & Dahleh §3.5); a half order (four-stroke
+    firing) excites at half the speed, so every frequency check governs there, against a
+    limit of 0.5·f_run/√2."""
+    calc = case_calc(wave2_case("R1"))
+    calc["inputs"].update(running_speed="1500 rpm", orders=[1, 0.5])
+    doc = compute(make_job(calc), rg_plugins)
+    f_run = 25.0
+    freqs = frequencies(doc)
+    for i, f in enumerate(freqs, start=1):
+        c = next(c for c in doc.sections[0].checks if c.id == f"frequency-{i}")
+        assert c.limit.value == pytest.approx(f_run / math.sqrt(2), rel=1e-12)
+        assert dict(c.governing.inputs)["order"].value == 0.5
+        half = "pass" if f <= 0.5 * f_run / math.sqrt(2) else "fail"
+        assert c.governing.status == half
+    assert doc.sections[0].envelope.orders == ((1.0, ""), (0.5, ""))

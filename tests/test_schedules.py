@@ -282,3 +282,58 @@ def test_a_revision_lists_added_removed_and_changed_tags(tmp_path, plugins):
     what, moved = changes["AHU-2"]
     assert what == "changed" and "status FAIL → PASS" in moved
     assert "static deflection 0.01 → 0.05 m (SI)" in moved
+
+
+def test_a_sheet_shows_every_equation_behind_its_checks_and_schedule_results(tmp_path,
+                                                                              plugins):
+    """The sheet's key working is closed: every operand an equation on it uses that some
+    equation computes is computed on the sheet too, and every check value and schedule
+    result comes from an equation on the sheet (so a checker redoes them by hand); the
+    design aid the checks do not use (the mounts a target would need) is left to the
+    item's own package (invariants of the selection, no outside source needed)."""
+    from reportgen.model import Equation
+
+    write_csv(tmp_path / "equipment.csv")
+    doc = compute_document(load_job(schedule_job(tmp_path, "equipment.csv"), plugins),
+                           plugins)
+    for s in doc.sections:
+        working = doc.sheet_working(s)
+        every = [b for b in s.blocks if isinstance(b, Equation)]
+        names = {e.name for e in working}
+        computed = {e.name for e in every}
+        for e in working:
+            assert {n for n, _ in e.operands} & computed <= names, e.name
+        values = [e.result.value for e in working]
+        for c in s.checks:
+            if c.value is not None and c.status != "info":
+                assert any(math.isclose(c.value.value, v, rel_tol=1e-12) for v in values), c.id
+        assert {r.key for r in doc.sheet_results(s)} >= set(doc.schedule_results)
+        assert len(working) < len(every)
+        assert "required_static_deflection" not in {e.result_key for e in working}
+
+
+def test_each_item_sheet_is_one_page(tmp_path):
+    """One page per item, each starting its own page (issue 22: "one compact sheet per
+    item, one page where the calc allows")."""
+    import pikepdf
+
+    from reportgen.render.selfcheck import _pages_text
+
+    write_csv(tmp_path / "equipment.csv")
+    job = schedule_job(tmp_path, "equipment.csv")
+    out = tmp_path / "out"
+    r = subprocess.run([sys.executable, "-m", "reportgen", "build", str(job), "--out",
+                        str(out)], capture_output=True, text=True, timeout=600)
+    assert r.returncode in (0, 1), r.stderr
+    with pikepdf.open(next(out.glob("*.pdf"))) as pdf:
+        pages = [re.sub(r"\s+", " ", t) for t in _pages_text(pdf)]
+    for number in range(1, len(ROWS) + 1):
+        starts = [i for i, t in enumerate(pages) if f"{number}.1 Inputs and Design" in t]
+        assert len(starts) == 1, number
+        page = pages[starts[0]]
+        assert f"{number}.4 Design checks" in page or f"{number}.3 Design checks" in page
+        following = pages[starts[0] + 1]
+        # the next page starts the next item, or the method printed once (its title has
+        # a colon; every sheet's header says "Method common to every item (last section)")
+        assert (f"{number + 1}.1 Inputs" in following or "Method common to every item:" in
+                following), f"item {number} runs onto a second page"

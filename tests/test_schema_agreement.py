@@ -115,6 +115,7 @@ def to_json(v: Any) -> Any:
 WRONG = {"mass": "3 m", "length": "3 kg", "time": "3 Hz", "force": "3 kg",
          "stiffness": "350 kg", "damping": "3 kN/m", "velocity": "3 m/s**2",
          "acceleration": "3 m/s", "frequency": "3 s", "angular_frequency": "3 m",
+         "angular_frequency_squared": "3 m",
          "angle": "3 m", "mass_length": "3 kg", "dimensionless": "0.05 kg",
          "moment": "3 kN", "rotational_stiffness": "3 kN/m", "moment_of_inertia": "3 kg*m",
          "pressure": "3 kN", "density": "3 kg/m**2", "area": "3 m", "second_moment_of_area":
@@ -132,6 +133,7 @@ SPELLINGS = {
     "acceleration": ["0.1 g", "1 m/s**2", "1 m/s^2", "1 m/s²", "3 in/s**2", "1 m s^-2"],
     "frequency": ["25 Hz", "1500 rpm", "1500 rev/min", "25 1/s", "157 rad/s", "25 hertz"],
     "angular_frequency": ["157 rad/s", "25 Hz", "1 1/s"],
+    "angular_frequency_squared": ["24650 rad**2/s**2", "24650 rad^2/s^2", "24650 rad/s**2"],
     "angle": ["30 deg", "0.5 rad", "0.5", "30 degrees"],
     "mass_length": ["0.5 kg*m", "500 g*mm", "0.5 kg m"],
     "dimensionless": ["0.05", "5 %", "5 percent"],

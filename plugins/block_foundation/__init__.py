@@ -166,8 +166,8 @@ class BlockFoundation(CalcType):
         working.response(s, p, ctx.given, a, v)
         checks.write(s, ctx.criteria, frozenset(ctx.criteria_given), a)
         band = ctx.criteria["min_frequency_separation"]
-        s.add(figures.response_chart(figures.response_curves(a, band=band), band),
-              figures.block_figure(figures.block_sketch(a)),
+        s.add(figures.response_chart(figures.response_curves(a, band=band), band, ctx.display),
+              figures.block_figure(figures.block_sketch(a), ctx.display),
               *(Caution(text=t) for t in text.CAUTIONS))
         return s.output(purpose=self.purpose)
 

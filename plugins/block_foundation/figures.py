@@ -10,7 +10,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from reportgen import Band, Figure, Marker, Panel, Series
-from reportgen.units import format_number
+from reportgen.units import axis_unit, display_units, format_number
 
 from .method import DEFAULT_FREQUENCY_SEPARATION, FoundationAnalysis, separation_band
 
@@ -93,9 +93,13 @@ def _v(values) -> tuple[float, ...]:
     return tuple(float(v) for v in values)
 
 
-def response_chart(c: ResponseCurves, band: float) -> Figure:
-    """Amplitude against running speed, vertical and coupled, with the separation band."""
-    um = 1e6
+def response_chart(c: ResponseCurves, band: float, display: str = "SI") -> Figure:
+    """Amplitude against running speed, vertical and coupled, with the separation band; the
+    amplitudes in the package's length unit stepped to their size (µm or mil, as a table
+    prints them: a few micrometres read badly as 0.004 mm)."""
+    top = max(float(np.max(a, initial=0.0)) for a in (
+        c.vertical_amplitude, c.horizontal_amplitude_top, c.horizontal_amplitude_at_force))
+    um, unit = display_units(display).unit(top, "length")
     f = c.frequency
     run = Marker(x=c.running_speed, label=f"running speed {format_number(c.running_speed, 4)}"
                                           " Hz")
@@ -104,14 +108,14 @@ def response_chart(c: ResponseCurves, band: float) -> Figure:
     vertical = Panel(
         series=(Series(x=_v(f), y=_v(c.vertical_amplitude * um), label="vertical",
                        emphasis=True),),
-        y_label="Vertical amplitude [µm]", bands=bands,
+        y_label=f"Vertical amplitude [{unit}]", bands=bands,
         markers=(run, Marker(x=c.vertical_natural_frequency, label="f_z")))
     coupled = Panel(
         series=(Series(x=_v(f), y=_v(c.horizontal_amplitude_top * um),
                        label="horizontal, top of block", emphasis=True),
                 Series(x=_v(f), y=_v(c.horizontal_amplitude_at_force * um),
                        label="horizontal, at the force's height", style="dashed")),
-        y_label="Horizontal amplitude [µm]", bands=bands,
+        y_label=f"Horizontal amplitude [{unit}]", bands=bands,
         markers=(run, Marker(x=c.coupled_frequencies[0], label="f_1"),
                  Marker(x=c.coupled_frequencies[1], label="f_2")))
     return Figure(
@@ -124,34 +128,41 @@ def response_chart(c: ResponseCurves, band: float) -> Figure:
         x_label="Running speed [Hz]", x_range=(0.0, float(f[-1])), panels=(vertical, coupled))
 
 
-def block_figure(sk: BlockSketch) -> Figure:
-    """The block in elevation (x, z) and in plan (x, y) with the equivalent circles."""
-    half_l, half_b = sk.length / 2.0, sk.width / 2.0
+def block_figure(sk: BlockSketch, display: str = "SI") -> Figure:
+    """The block in elevation (x, z) and in plan (x, y) with the equivalent circles, in the
+    package's length unit."""
+    s, u = axis_unit(display, "length")
+
+    def ln(value: float) -> str:
+        return f"{format_number(value * s, 3)} {u}"
+
+    half_l, half_b = sk.length / 2.0 * s, sk.width / 2.0 * s
     elev = (Series(x=(-half_l, half_l, half_l, -half_l, -half_l),
-                   y=(0.0, 0.0, sk.height, sk.height, 0.0), label="block", emphasis=True),
-            Series(x=(sk.machine_cg[0],), y=(sk.machine_cg[2],), style="points",
+                   y=(0.0, 0.0, sk.height * s, sk.height * s, 0.0), label="block",
+                   emphasis=True),
+            Series(x=(sk.machine_cg[0] * s,), y=(sk.machine_cg[2] * s,), style="points",
                    label="machine's centre of gravity"),
-            Series(x=(sk.combined_cg[0],), y=(sk.combined_cg[2],), style="points",
+            Series(x=(sk.combined_cg[0] * s,), y=(sk.combined_cg[2] * s,), style="points",
                    label="combined centre of gravity"),
-            Series(x=(-half_l, half_l), y=(sk.force_height, sk.force_height), style="dotted",
-                   label=f"force height {format_number(sk.force_height, 3)} m"))
+            Series(x=(-half_l, half_l), y=(sk.force_height * s, sk.force_height * s),
+                   style="dotted", label=f"force height {ln(sk.force_height)}"))
     t = [2 * math.pi * i / 72 for i in range(73)]
     circles = [Series(x=(-half_l, half_l, half_l, -half_l, -half_l),
                       y=(-half_b, -half_b, half_b, half_b, -half_b), label="base",
                       emphasis=True)]
     for r, name, style in ((sk.radius_translation, "r_z (vertical, horizontal)", "dashed"),
                            (sk.radius_torsion, "r_t (torsion)", "dotted")):
-        circles.append(Series(x=_v(r * math.cos(a) for a in t), y=_v(r * math.sin(a) for a in t),
-                              label=f"{name} = {format_number(r, 3)} m", style=style))
+        circles.append(Series(x=_v(r * s * math.cos(a) for a in t),
+                              y=_v(r * s * math.sin(a) for a in t),
+                              label=f"{name} = {ln(r)}", style=style))
     return Figure(
         key="foundation-block",
         caption="The block in elevation and in plan: centres of gravity, the height of the"
                 " force, and the equivalent circles of the base (rocking radii: about x"
-                f" {format_number(sk.radius_rocking_x, 3)} m, about y"
-                f" {format_number(sk.radius_rocking_y, 3)} m). Axes in metres.",
+                f" {ln(sk.radius_rocking_x)}, about y {ln(sk.radius_rocking_y)}).",
         alt="Elevation of the block with the centres of gravity, and plan of the base with"
             " its equivalent circles",
-        x_label="x, along the block's length [m]",
-        panels=(Panel(series=elev, y_label="z, height above the base [m]",
+        x_label=f"x, along the block's length [{u}]",
+        panels=(Panel(series=elev, y_label=f"z, height above the base [{u}]",
                       markers=(Marker(x=0.0, label="centre of the base"),)),
-                Panel(series=tuple(circles), y_label="y, across the block [m]")))
+                Panel(series=tuple(circles), y_label=f"y, across the block [{u}]")))

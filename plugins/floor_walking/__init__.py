@@ -242,7 +242,7 @@ class FloorWalking(CalcType):
             s.add(figures.bay_plan(bay_sketch(modes, beam_span=p["beam_span"],
                                               girder_span=p["girder_span"],
                                               beam_spacing=p["beam_spacing"]),
-                                   p["bay_position"]))
+                                   p["bay_position"], ctx.display))
         s.add(*(Caution(text=t) for t in text.CAUTIONS))
         purpose = self.purpose if {"occupancy", "max_acceleration_ratio"} & given else ""
         if "criterion" in given:

@@ -209,11 +209,12 @@ def equipment(s: Sheet, f_n: float, weight: float, beta: float, pace: str, name:
     else:
         i_eff = s.equation("I_eff", f"f_s**1.43/f_n**1.30*Q/{IMPULSE_DIVISOR}",
                            f_s=f_s, f_n=f_n, Q=IMPULSE_BODY_WEIGHT,
+                           dims={"f_s": "frequency", "Q": "dimensionless"},  # Q in N: empirical
                            description="Effective footstep impulse (N·s; frequencies in Hz,"
                                        " Q = 747 N)")
         v_p = s.equation("v_p", "I_eff/M", "velocity", I_eff=i_eff, M=m,
                          description="Peak velocity after one footstep")
-        h = s.equation("h", "f_n/f_s", f_n=f_n, f_s=f_s,
+        h = s.equation("h", "f_n/f_s", f_n=f_n, f_s=f_s, dims={"f_s": "frequency"},
                        description="Cycles of the floor per footstep")
         v = s.equation("v_rms", "v_p/sqrt(2)*sqrt((1 - exp(-4*pi*beta*h))/(4*pi*beta*h))",
                        "velocity", v_p=v_p, beta=beta, h=h, key="velocity_rms",
@@ -222,7 +223,7 @@ def equipment(s: Sheet, f_n: float, weight: float, beta: float, pace: str, name:
              f"Criterion {name} at the floor's frequency (one-third-octave band rms)",
              key_result=True)
     ratio = s.equation("R_v", "v_rms/V_c", v_rms=v, V_c=v_crit,
-                       key="velocity_ratio_to_limit", key_result=True,
+                       key="velocity_ratio_to_limit", key_result=True, dims={"V_c": "velocity"},
                        description="Ratio of the floor velocity to the criterion")
     _agree(v, resp.velocity_rms, "floor velocity")
     _agree(ratio, resp.ratio_to_limit, "velocity ratio")

@@ -210,10 +210,10 @@ class ForcedResponse(CalcType):
         if time_integration_cost(v.r, v.zeta) > MAX_ODE_COST:
             s.add(Note(text=text.no_integration_note(time_integration_cost(v.r, v.zeta))))
         s.add(figures.frequency_response(kind, p, given, m, k, v.zeta, v.f_n, v.f, band,
-                                         ctx.units))
+                                         ctx.display))
         if "speed_range" in p:
             s.add(figures.run_up(kind, p, given, m, k, v.zeta, v.f_n, v.f, band, crit,
-                                 ctx.units))
+                                 ctx.display))
         return s.output(purpose=self.purpose)
 
     def verify(self, ctx: CalcContext, output: CalcOutput):

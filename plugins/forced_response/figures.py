@@ -3,6 +3,7 @@ response over the stated speed range."""
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from typing import Any
 
@@ -11,7 +12,7 @@ from reportgen_plugins.mechanics import resonance_grid
 from reportgen_plugins.mechanics import series_values as _series
 
 from reportgen import Band, Figure, Marker, Panel, Series
-from reportgen.units import table_display
+from reportgen.units import axis_unit
 
 from .method import response
 
@@ -23,18 +24,23 @@ def _r(a) -> tuple[float, ...]:
     return _series(a, decimals=None)
 
 
-def _axis(dimension: str, units: str) -> tuple[float, str]:
-    """Factor from SI and unit label for a plotted quantity (mm, mm/s, N or in, in/s, lbf)."""
-    return table_display(1.0, dimension, units)
+def _axis(dimension: str, display: str) -> tuple[float, str]:
+    """Factor from SI and unit label for a plotted quantity, in the package's display units
+    (``display``: its key)."""
+    return axis_unit(display, dimension)
 
 
-def _log_range(y: tuple[float, ...], zeta: float) -> tuple[float, float] | None:
+def _log_range(y: tuple[float, ...], zeta: float, point: float) -> tuple[float, float] | None:
     vals = np.array([v for v in y if v > 0])
     if zeta >= 0.0025 or not len(vals):
         return None
-    # undamped or nearly so: cap the peak so the rest of the curve stays readable
+    # undamped or nearly so: cap the peak so the rest of the curve stays readable, yet keep
+    # the operating point inside the axes
     med = float(np.median(vals))
-    return float(vals.min()) * 0.5, med * 300
+    lo, hi = float(vals.min()) * 0.5, med * 300
+    if point > 0 and math.isfinite(point):
+        lo, hi = min(lo, point / 2.0), max(hi, point * 2.0)
+    return lo, hi
 
 
 def _linear_range(y: tuple[float, ...], zeta: float,
@@ -49,8 +55,8 @@ def _linear_range(y: tuple[float, ...], zeta: float,
 
 def frequency_response(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float,
                        k: float, zeta: float, fn: float, f: float,
-                       band: tuple[float, float], units: str) -> Figure:
-    (lf, lu), (ff, fu) = _axis("length", units), _axis("force", units)
+                       band: tuple[float, float], display: str) -> Figure:
+    (lf, lu), (ff, fu) = _axis("length", display), _axis("force", display)
     rpm = kind == "unbalance"
     scale = 60.0 if rpm else 1.0
     x_hi = max(2.5 * fn, 1.5 * f, p["speed_range"][1] if "speed_range" in p else 0.0)
@@ -81,11 +87,11 @@ def frequency_response(kind: str, p: Mapping[str, Any], given: frozenset[str], m
     panels = (
         Panel(series=mag_series, y_label=mag_label, y_scale="log", bands=(band_s,),
               markers=(fn_mark, Marker(x=opx, y=mag_op, label="operating point")),
-              y_range=_log_range(mag_series[0].y, zeta)),
+              y_range=_log_range(mag_series[0].y, zeta, mag_op)),
         Panel(series=(Series(x=xs, y=_r(resp["F_T"] * ff), label="", emphasis=True),),
               y_label=f"Transmitted force F_T [{fu}]", y_scale="log", bands=(band_s,),
               markers=(fn_mark, Marker(x=opx, y=float(op["F_T"][0]) * ff)),
-              y_range=_log_range(_r(resp["F_T"] * ff), zeta)),
+              y_range=_log_range(_r(resp["F_T"] * ff), zeta, float(op["F_T"][0]) * ff)),
         Panel(series=tuple(phase_series), y_label="Phase lag φ [°]",
               bands=(band_s,), markers=(fn_mark, Marker(
                   x=opx, y=float(np.degrees(op["phi"][0])))),
@@ -110,7 +116,7 @@ def frequency_response(kind: str, p: Mapping[str, Any], given: frozenset[str], m
 
 def run_up(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float, k: float,
            zeta: float, fn: float, f: float, band: tuple[float, float],
-           crit: Mapping[str, Any], units: str) -> Figure:
+           crit: Mapping[str, Any], display: str) -> Figure:
     low, high = p["speed_range"]
     freqs = resonance_grid(low, high, fn, zeta, PLOT_POINTS)
     resp = response(kind, p, given, m, k, zeta, freqs)
@@ -132,7 +138,7 @@ def run_up(kind: str, p: Mapping[str, Any], given: frozenset[str], m: float, k: 
                      markers=markers, bands=bands, hlines=hl,
                      y_range=_linear_range(y, zeta, hl))
 
-    (lf, lu), (vf, vu), (ff, fu) = (_axis(d, units) for d in ("length", "velocity", "force"))
+    (lf, lu), (vf, vu), (ff, fu) = (_axis(d, display) for d in ("length", "velocity", "force"))
     panels = (panel(resp["X"], f"Displacement X [{lu}]", "max_displacement", lf),
               panel(resp["V"], f"Velocity, peak [{vu}]", "max_velocity", vf),
               panel(resp["F_T"], f"Transmitted force F_T [{fu}]", "max_transmitted_force",

@@ -11,9 +11,12 @@ from typing import Any
 from reportgen_plugins.mechanics import (
     absolute_phase_lag_formula,
     amplification_formula,
+    amplification_text,
     critical_damping_formula,
     phase_lag_formula,
     quantity_text,
+    transmissibility,
+    transmission_level,
 )
 from reportgen_plugins.mechanics.passage import MAX_CYCLES, run_up_cycles, run_up_peak
 
@@ -100,7 +103,10 @@ def write(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str]) -> P
     else:
         t_f = s.equation("T_F", "sqrt(1 + (2*zeta*r)**2)*D", zeta=zeta, r=r, D=dyn,
                          key="force_transmissibility",
-                         description="Force transmissibility F_T/F_0")
+                         description="Force transmissibility F_T/F_0"
+                                     + (f": {amplification_text(transmissibility(r, zeta))}"
+                                        if transmissibility(r, zeta) > 1.0 else ""))
+        transmission_level(s, t_f, operand="T_F", what="T_F", key="force_transmission_level")
         f_t = s.equation("F_T", "T_F*F_0", "force", T_F=t_f, F_0=f0,
                          key="transmitted_force", key_result=True,
                          description="Amplitude of the force through spring and damper"
@@ -135,7 +141,10 @@ def _support_motion(s: Sheet, p: Mapping[str, Any], given: frozenset[str], zeta:
         y_amp = p["base_displacement"]
     tr = s.equation("T", "sqrt(1 + (2*zeta*r)**2)*D", zeta=zeta, r=r, D=dyn,
                     key="motion_transmissibility", key_result=True,
-                    description="Motion transmissibility X/Y (absolute motion)")
+                    description="Motion transmissibility X/Y (absolute motion)"
+                                + (f": {amplification_text(transmissibility(r, zeta))}"
+                                   if transmissibility(r, zeta) > 1.0 else ""))
+    transmission_level(s, tr, key="motion_transmission_level")
     x = s.equation("X", "T*Y", "length", T=tr, Y=y_amp, key="displacement_amplitude",
                    key_result=True,
                    description="Absolute displacement amplitude of the mass")

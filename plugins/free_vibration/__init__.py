@@ -130,7 +130,7 @@ class FreeVibration(CalcType):
         checks.criteria(s, ctx.criteria, fn, dst)
 
         duration = p.get("duration") or default_duration(wn, zeta)
-        s.add(figures.time_history(resp, duration, fn, self.max_points, ctx.units))
+        s.add(figures.time_history(resp, duration, fn, self.max_points, ctx.display))
         return s.output(purpose=self.purpose)
 
     def verify(self, ctx: CalcContext, output: CalcOutput):

@@ -5,16 +5,16 @@ from __future__ import annotations
 from reportgen_plugins.mechanics import series_values as _r
 
 from reportgen import Figure, Marker, Panel, Series
-from reportgen.units import table_display
+from reportgen.units import axis_unit
 
 from .method import FreeResponse, history_times
 
 
 def time_history(resp: FreeResponse, duration: float, fn: float, max_points: int,
-                 units: str = "SI") -> Figure:
+                 display: str = "SI") -> Figure:
     t = history_times(duration, fn, max_points)
     x = resp.displacement(t)
-    scale, unit = table_display(1.0, "length", units)  # mm, or in in a US package
+    scale, unit = axis_unit(display, "length")  # the package's length unit: mm, µm, in, mil
     panel_series = [Series(x=_r(t), y=_r(x * scale), label="x(t)", emphasis=True)]
     env = resp.envelope(t)
     if env is not None:

@@ -66,6 +66,8 @@ def static_deflection(s: Sheet, m: float, k: float, units: str = "SI"
 
 def response(s: Sheet, wn: float, zeta: float, x0: float, v0: float) -> FreeResponse:
     """The free response's coefficients for the regime ζ falls in."""
+    s.declare(omega_n="angular_frequency", zeta="dimensionless",  # also on a scratch sheet
+              x_0="length", v_0="velocity")
     kind = regime(zeta)
     if kind == "critical":
         s.equation("B", "v_0 + omega_n*x_0", "velocity", v_0=v0, omega_n=wn, x_0=x0,

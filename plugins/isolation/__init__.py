@@ -212,7 +212,7 @@ class Isolation(CalcType):
         ratio = stiffness_ratio(p)
         s.add(figures.mount_table(mount_rows(mount, iso.k_m, tg.f_n_req, equal=not uneven,
                                              ratio=ratio),
-                                  p.get("mount_positions"), len(mount), units))
+                                  p.get("mount_positions"), len(mount), ctx.display))
         if uneven and ld.P_min > 0:
             s.add(Note(text=text.per_position_note(ld.P_min, tg.delta_req, tg.k_m_req, units)))
         selection.write(s, p, mount, tg.delta_req, units)
@@ -221,7 +221,7 @@ class Isolation(CalcType):
         s.add(figures.transmissibility_chart(iso.r, iso.T, p["damping_ratio"], tg.T_req,
                                              tg.r_req),
               figures.selection_chart(iso.f, p["damping_ratio"], iso.delta_st, iso.eta,
-                                      tg.delta_req, crit["min_efficiency"], units,
+                                      tg.delta_req, crit["min_efficiency"], ctx.display,
                                       ratio=ratio),
               *(Caution(text=t) for t in text.CAUTIONS))
         if "damping_ratio" not in ctx.given:  # guidance where the damping is assumed

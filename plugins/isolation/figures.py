@@ -6,11 +6,11 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from reportgen_plugins.mechanics import frequency_from_deflection, ratio_grid
+from reportgen_plugins.mechanics import amplification_text, frequency_from_deflection, ratio_grid
 from reportgen_plugins.mechanics import series_values as _r
 
 from reportgen import Figure, Marker, Panel, Series, Table
-from reportgen.units import STANDARD_GRAVITY, format_number, table_display
+from reportgen.units import STANDARD_GRAVITY, axis_unit, format_number
 
 from .method import COMPARISON_DAMPING, SQRT2, MountRow, transmissibility
 
@@ -33,7 +33,8 @@ def transmissibility_chart(r_op: float, t_op: float, zeta: float, t_req: float,
                 f" T = {format_number(t_op, 4)}",
         alt="Log-log plot of transmissibility against frequency ratio; the curves cross"
             " T = 1 at r = √2 and the operating point is marked",
-        x_label="Frequency ratio r = f/f_n", x_scale="log", x_range=(0.1, r_hi),
+        x_label="Frequency ratio r = f/f_n", x_scale="log",
+        x_range=(min(0.1, r_op / 1.5), r_hi),  # the operating point stays inside
         panels=(Panel(series=tuple(series), y_label="Transmissibility T", y_scale="log",
                       y_range=(lo, max(100.0, 3.0 * t_op)),  # the point stays inside
                       hlines=((t_req, "target T_req"),),
@@ -42,9 +43,9 @@ def transmissibility_chart(r_op: float, t_op: float, zeta: float, t_req: float,
 
 
 def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: float,
-                    eta_min: float, units: str, ratio: float = 1.0) -> Figure:
+                    eta_min: float, display: str, ratio: float = 1.0) -> Figure:
     g = STANDARD_GRAVITY * ratio  # an elastomer's f_n = √(κ_d·g/δ_st)/2π
-    scale, unit = table_display(1.0, "length", units)  # mm, or in for US customary
+    scale, unit = axis_unit(display, "length")  # the package's length unit
     d_sqrt2 = 2.0 * g / (2 * math.pi * f) ** 2  # deflection at r = √2
     d_lo = max(min(0.8 * d_sqrt2, 0.8 * d_op), 1e-5)  # the selected point inside the axes
     d_hi = max(0.1, 2.5 * d_op, 2.5 * d_req)
@@ -65,8 +66,9 @@ def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: fl
         caption=f"Isolation efficiency against static deflection at"
                 f" {format_number(f * 60, 4)} rpm ({format_number(f, 4)} Hz): selected"
                 f" {format_number(d_op * scale, 3)} {unit},"
-                f" η = {format_number(eta_op * 100, 3)} %;"
-                f" required at least {format_number(d_req * scale, 3)} {unit} for"
+                + (f" η = {format_number(eta_op * 100, 3)} %;" if eta_op >= 0 else
+                   f" {amplification_text(1.0 - eta_op)};")  # a negative η is no isolation
+                + f" required at least {format_number(d_req * scale, 3)} {unit} for"
                 f" {format_number(eta_min * 100, 3)} %",
         alt="Isolation efficiency in percent against static deflection,"
             " rising with deflection; the target line and the selected point are marked",
@@ -78,13 +80,13 @@ def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: fl
                       markers=tuple(markers)),))
 
 
-def mount_table(rows: tuple[MountRow, ...], positions, count: int, units: str) -> Table:
+def mount_table(rows: tuple[MountRow, ...], positions, count: int, display: str) -> Table:
     """The mount table: one row for equal mounts (``positions`` None), else one per mount."""
     def cell(value: float, dimension: str, digits: int = 4) -> str:
-        return format_number(table_display(value, dimension, units)[0], digits)
+        return format_number(value * axis_unit(display, dimension)[0], digits)
 
     def unit(dimension: str) -> str:
-        return table_display(1.0, dimension, units)[1]
+        return axis_unit(display, dimension)[1]
 
     header = ("Mount", f"x [{unit('length')}]", f"y [{unit('length')}]",
               f"Load [{unit('force')}]", "Share [%]", f"Deflection [{unit('length')}]",

@@ -10,13 +10,15 @@ from typing import Any
 
 import numpy as np
 from reportgen_plugins.mechanics import (
+    amplification_text,
     frequency_from_deflection_formula,
     peak_ratio_formula,
     transmissibility_formula,
+    transmission_level,
 )
 
 from reportgen import Paragraph, Sheet
-from reportgen.units import STANDARD_GRAVITY, format_number
+from reportgen.units import STANDARD_GRAVITY
 
 from . import text
 from .method import required_ratio, second_moments
@@ -94,12 +96,10 @@ def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Is
                    key_result=True, description="Transmissibility at the running speed")
     amplifies = t > 1.0
     eta = s.equation("eta", "1 - T", T=t, key="isolation_efficiency", key_result=True,
-                     description=(f"Isolation efficiency: none, the mounts amplify"
-                                  f" × {format_number(t, 3)} (T > 1, no isolation)"
-                                  if amplifies else "Isolation efficiency"))
-    s.equation("L_T", "-20*log10(T)", "level", T=t, key="isolation_db",
-               description=("Transmission level, −20·log10 T: negative, an amplification"
-                            if amplifies else "Isolation in decibels, −20·log10 T"))
+                     description=(f"Isolation efficiency: none, the mounts give"
+                                  f" {amplification_text(t)}" if amplifies else
+                                  "Isolation efficiency"))
+    transmission_level(s, t, key="isolation_db")
     return Isolator(f=f, k=k, k_m=km, f_n=fn, delta_st=dst, r=r, T=t, eta=eta, k_dyn=kd)
 
 

@@ -161,9 +161,9 @@ class MeasuredVibration(CalcType):
                                                             else BAND_VELOCITY):
             raise ValueError(f"mode {mode!r} does not fit the criterion {criterion.name!r}")
         analysis = analysis_of(ctx.inputs, mode == "ppv")
-        plan, units = analysis.plan, ctx.units
+        plan, units = analysis.plan, ctx.display  # figures in the display units
         s = Sheet(self.inputs + self.criteria)
-        s.declare(v_b="velocity", v_lim="velocity")
+        s.declare(v_b="velocity", v_lim="velocity", v_p="velocity", v_g="velocity")
         s.add(Assumptions(items=tuple(text.assumptions(
             plan.quantity, plan.channels, plan.sample_rate, ctx.inputs.get("averaging_time"),
             (analysis.analysed_from, analysis.analysed_to), mode == "ppv"))),

@@ -7,16 +7,20 @@ import numpy as np
 from reportgen_plugins.vibration_criteria import Criterion, limit_at
 
 from reportgen import Figure, Panel, Series, Table
-from reportgen.units import format_number
+from reportgen.units import axis_unit, display_units, format_number
 
 from .method import Analysis
 
 _STYLES = ("dashed", "dotted", "dashed", "dotted")
 
 
-def _velocity_unit(units: str, small: bool) -> tuple[float, str]:
-    """Scale from m/s and the label of a velocity axis (µm/s for quiet floors)."""
-    if units == "US":
+def _velocity_unit(display: str, small: bool) -> tuple[float, str]:
+    """Scale from m/s and the label of a velocity axis: the unit the package shows velocities
+    in where the job or the firm chose one, else µm/s for quiet floors."""
+    du = display_units(display)
+    if "velocity" in dict(du.preferred):
+        return axis_unit(display, "velocity")
+    if du.system == "US":
         return (1.0 / 25.4e-9, "µin/s") if small else (1.0 / 25.4e-3, "in/s")
     return (1e6, "µm/s") if small else (1e3, "mm/s")
 

@@ -2,7 +2,7 @@
 (``sdof``), figure grids (``spectra``), figure and text values (``display``), damping inputs,
 the support (``support``)."""
 
-from .display import quantity_text, series_values
+from .display import amplification_text, quantity_text, series_values, transmission_level
 from .inputs import (
     DAMPING_INPUTS,
     MOUNT_TYPES,
@@ -35,9 +35,9 @@ from .spectra import ratio_grid, resonance_grid
 from .support import FLOOR_SEPARATION, floor_check, support_inputs
 
 __all__ = [
-    "DAMPING_INPUTS", "FLOOR_SEPARATION", "damping_inputs", "damping_problems", "floor_check",
-    "support_inputs", "MOUNT_TYPES", "mount_type_inputs", "mount_type_problems",
-    "stiffness_ratio",
+    "DAMPING_INPUTS", "FLOOR_SEPARATION", "amplification_text", "damping_inputs",
+    "damping_problems", "floor_check", "support_inputs", "transmission_level", "MOUNT_TYPES",
+    "mount_type_inputs", "mount_type_problems", "stiffness_ratio",
     "absolute_phase_lag", "absolute_phase_lag_formula", "amplification_formula",
     "critical_damping_formula", "damping_ratio", "dynamic_amplification",
     "frequency_from_deflection", "frequency_from_deflection_formula", "natural_frequency",

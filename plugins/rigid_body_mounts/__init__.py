@@ -192,12 +192,12 @@ class RigidBodyMounts(CalcType):
         s = Sheet(self.inputs + self.criteria)
         n_mounts = len(done.rows)
         # operands of the printed working: box sides, each mount's stiffness and place,
-        # the static displacements; an eigenvalue λ = ω² is printed in SI (1/s²)
+        # the static displacements; an eigenvalue λ = ω² (rad²/s²)
         s.declare(a="length", b="length", h="length", w="length", theta_x="angle",
                   theta_y="angle",
                   **{f"k_z{i}": "stiffness" for i in range(1, n_mounts + 1)},
                   **{f"{c}_{i}": "length" for i in range(1, n_mounts + 1) for c in "xy"},
-                  **{f"lambda_{i}": "dimensionless" for i in range(1, 7)})
+                  **{f"lambda_{i}": "angular_frequency_squared" for i in range(1, 7)})
         s.add(Assumptions(items=text.assumptions(ctx.given, a.model.body.inertia_estimated)),
               Paragraph(title="Method", text=text.METHOD))
         if p.get("mount_type") == "elastomer" or a.stiffness_ratio != 1.0:
@@ -213,7 +213,7 @@ class RigidBodyMounts(CalcType):
             working.response(s, p, a)
         s.add(figures.mount_table(a, units))
         checks.write(s, p, crit, a, done, units)
-        s.add(*figures.all_figures(a, p, crit, units))
+        s.add(*figures.all_figures(a, p, crit, ctx.display))
         if a.model.body.inertia_estimated:
             s.add(Caution(text=text.BOX_CAUTION))
         s.add(*(Caution(text=t) for t in text.CAUTIONS))

@@ -12,7 +12,7 @@ from reportgen_plugins.mechanics import series_values as _r
 from reportgen_plugins.mechanics.catalogue_sheet import selection_paragraph, selection_table
 
 from reportgen import Band, Figure, Marker, Panel, Series, Sheet, Table
-from reportgen.units import format_number, table_display
+from reportgen.units import axis_unit, format_number
 
 from . import text
 from .analysis import Analysis
@@ -26,14 +26,14 @@ from .views import frequency_chart, mode_views, plan_view
 ORDERS = (1.0, 2.0)
 
 
-def _scale(dimension: str, units: str) -> tuple[float, str]:
-    return table_display(1.0, dimension, units)
+def _scale(dimension: str, display: str) -> tuple[float, str]:
+    return axis_unit(display, dimension)
 
 
-def plan(a: Analysis, units: str) -> Figure:
+def plan(a: Analysis, display: str) -> Figure:
     pv = plan_view(a.model, a.static)
-    ls, lu = _scale("length", units)
-    fs, fu = _scale("force", units)
+    ls, lu = _scale("length", display)
+    fs, fu = _scale("force", display)
     outline = Series(x=_r(np.array([p[0] for p in pv.outline]) * ls),
                      y=_r(np.array([p[1] for p in pv.outline]) * ls),
                      label="support outline", style="dashed")
@@ -86,8 +86,8 @@ def _motion(phi: np.ndarray, points: np.ndarray, cg: np.ndarray) -> np.ndarray:
     return phi[:3] + np.cross(phi[3:], points - cg)
 
 
-def modes(a: Analysis, units: str) -> Figure:
-    ls, lu = _scale("length", units)
+def modes(a: Analysis, display: str) -> Figure:
+    ls, lu = _scale("length", display)
     box = _box(a)
     cg = np.asarray(a.model.body.cg, dtype=float)
     mounts = np.array([[m.x, m.y, m.z] for m in a.model.mounts])
@@ -121,7 +121,7 @@ def modes(a: Analysis, units: str) -> Figure:
 
 
 def frequencies(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
-                units: str) -> Figure:
+                display: str) -> Figure:
     f = a.modes.frequencies
     points = Series(x=_r(f), y=tuple(float(i) for i in range(1, 7)), style="points",
                     label="natural frequencies", emphasis=True)
@@ -142,7 +142,7 @@ def frequencies(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
         grid = np.linspace(top / 200.0, top, 800)
         total = sum(forced_response(a.vibrating, a.modes, e, grid, a.damping_ratio).total_peak
                     for e in a.excitations)
-        fs, fu = _scale("force", units)
+        fs, fu = _scale("force", display)
         y = np.asarray(total) * fs
         panels.append(Panel(series=(Series(x=_r(grid), y=_r(np.maximum(y, 1e-30)),
                                            label="total force to the structure"),),
@@ -162,8 +162,8 @@ def frequencies(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
 
 
 def all_figures(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
-                units: str) -> tuple[Figure, ...]:
-    return plan(a, units), modes(a, units), frequencies(a, p, crit, units)
+                display: str) -> tuple[Figure, ...]:
+    return plan(a, display), modes(a, display), frequencies(a, p, crit, display)
 
 
 def mount_table(a: Analysis, units: str) -> Table:

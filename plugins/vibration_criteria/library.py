@@ -8,7 +8,7 @@ from __future__ import annotations
 import difflib
 import math
 from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -85,6 +85,9 @@ class Criterion:
     aliases: tuple[str, ...] = ()
     valid_from: float = 0.0  # Hz: below this the source gives no value (the end value is held)
     on_boundary: str = ON_BOUNDARY
+    #: (file name, bytes) of the firm's file it was read from, embedded in a package that
+    #: uses it (reportgen.calc.criteria.ORIGIN_FILE), so that verify re-reads it
+    origin_file: tuple[str, bytes] | None = field(default=None, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         problem = _problem(self)

@@ -4,10 +4,12 @@ from ``criteria/*.csv`` and ``criteria/*.toml`` in its template folder.
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
 from typing import Any
 
 from reportgen import hookimpl
+from reportgen.calc.criteria import FIRM_CRITERIA_FOLDER
 
 from .builtin import BUILTIN
 from .errors import DataFileError
@@ -17,7 +19,7 @@ from .library import normalise_name
 __all__ = ["FOLDER", "firm_criteria", "reportgen_register_criteria"]
 
 #: the folder of a firm's template folder that holds its own criteria files
-FOLDER = "criteria"
+FOLDER = FIRM_CRITERIA_FOLDER
 SUFFIXES = (".csv", ".toml")
 #: a criteria file is a few points per curve; anything larger is not one
 MAX_BYTES = 1024 * 1024
@@ -50,7 +52,7 @@ def firm_criteria(template_dir: Path | None) -> tuple[Any, ...]:
                 raise DataFileError(shown, f"the curve {criterion.name!r} takes the name of"
                                            f" the built-in criterion {taken!r}; give it a"
                                            " name of the firm's own", column=criterion.name)
-            out.append(criterion)
+            out.append(dataclasses.replace(criterion, origin_file=(path.name, data)))
     return tuple(out)
 
 

@@ -36,6 +36,22 @@ class RegisteredCriterion:
         return str(self.criterion.name)
 
 
+#: A firm's own criteria files live in this folder of its template folder. A criterion
+#: read from such a file carries ``origin_file = (file name, bytes)``; a package that uses
+#: it embeds the file at ``criteria/<file name>`` beside its job, and an archived job is
+#: loaded with its own folder as the template folder, so verify reads the same curve.
+FIRM_CRITERIA_FOLDER = "criteria"
+
+
+def origin_file(criterion: Any) -> tuple[str, bytes] | None:
+    """(file name, bytes) of the firm's file a criterion was read from, if any."""
+    found = getattr(criterion, "origin_file", None)
+    if (isinstance(found, tuple) and len(found) == 2 and isinstance(found[0], str)
+            and isinstance(found[1], bytes)):
+        return found
+    return None
+
+
 @dataclass
 class CriteriaLibrary:
     """Every registered criterion by normalised name (and alias), with what went wrong."""

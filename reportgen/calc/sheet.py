@@ -45,6 +45,14 @@ class CalcContext:
     #: folder); look one up with ``ctx.criteria_library.get(name)``. It pickles, so a
     #: verification run in a worker process sees the same library.
     criteria_library: CriteriaLibrary = field(default_factory=CriteriaLibrary)
+    #: the key of the package's display units ("SI;length=µm"): figures and tables show
+    #: their axes in it (``reportgen.units.axis_unit``); the system when not given, so a
+    #: context made by hand keeps working
+    display: str = ""
+
+    def __post_init__(self) -> None:
+        if not self.display:
+            object.__setattr__(self, "display", self.units)
 
     def file_hashes(self) -> dict[str, str]:
         """{input name: SHA-256} of the data files: what the files add to a cache key."""
@@ -97,15 +105,23 @@ class Sheet:
         """Evaluate ``expression`` with ``operands`` and record it; returns the value.
 
         With ``key`` the value is also recorded as a result under that key. ``dims`` names
-        the dimension of operands the sheet does not know (see :meth:`declare`).
+        the dimension of operands the sheet does not know (see :meth:`declare`); a named
+        operand whose dimension is nowhere declared raises FormulaError (plain numbers in
+        the expression need none).
         """
         needed = _formula.names_in(expression)
         missing = needed - operands.keys()
         if missing:
             raise _formula.FormulaError(f"formula {expression!r} needs {sorted(missing)}")
+        known = {**self._dims, **(dims or {})}
+        undeclared = sorted(needed - known.keys())
+        if undeclared:  # it would print without a unit: a checker could not redo it
+            raise _formula.FormulaError(
+                f"formula {name} = {expression!r}: no dimension declared for"
+                f" {', '.join(undeclared)} (declare it with Sheet.declare, an input spec or"
+                " dims=...; a pure ratio is 'dimensionless')")
         ordered = tuple((n, float(operands[n])) for n in sorted(needed))
         value = _formula.evaluate(expression, dict(ordered))
-        known = {**self._dims, **(dims or {})}
         self._blocks.append(Equation(name=name, expression=expression, operands=ordered,
                                      result=Quantity(value=value, dimension=dimension),
                                      description=description, result_key=key,

@@ -243,7 +243,7 @@ class $cls(CalcType):
     def compute(self, ctx: CalcContext) -> CalcOutput:
         p = ctx.inputs  # SI floats; "mounts" is an int
         m, n, k = p["mass"], float(p["mounts"]), p["mount_stiffness"]
-        s = Sheet()
+        s = Sheet(self.inputs)  # knows the inputs' symbols and dimensions (m, n, k)
         s.add(Assumptions(items=(
             "The machine is rigid and its centre of gravity lies over the centroid of the"
             " mounts, so every mount carries the same load.",

@@ -118,11 +118,12 @@ def check_deviations(job: Job, sections: list[Section]) -> None:
         raise JobError(problems)
 
 
-def calc_context(spec: CalcSpec, units: str) -> CalcContext:
+def calc_context(spec: CalcSpec, units: str, display: str = "") -> CalcContext:
     return CalcContext(calc_id=spec.id, title=spec.title, inputs=dict(spec.inputs),
                        given=spec.given, criteria=dict(spec.criteria),
                        criteria_given=spec.criteria_given, units=units,
-                       files=dict(spec.files), criteria_library=spec.criteria_library)
+                       files=dict(spec.files), criteria_library=spec.criteria_library,
+                       display=display or units)
 
 
 def _failure(c_reg: RegisteredCalc, calc_id: str, message: str, stage: str,
@@ -178,7 +179,7 @@ def compute_calc(spec: CalcSpec, reg: RegisteredCalc, units: str,
                  display: str = "") -> Computed:
     """Call the calc's compute once, wrapped so a failure names its plugin; check the
     output is well formed."""
-    ctx = calc_context(spec, units)
+    ctx = calc_context(spec, units, display)
     try:
         out = reg.calc_type.compute(ctx)
     except ReportgenError:

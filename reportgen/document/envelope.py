@@ -19,7 +19,7 @@ from typing import Any
 from reportgen.calc.plugin_set import RegisteredCalc
 from reportgen.calc.sheet import CalcContext, CalcOutput
 from reportgen.job.load import CalcSpec
-from reportgen.job.orders import SPEED_INPUT, SWEEP_POINTS
+from reportgen.job.orders import SWEEP_POINTS, speed_input
 from reportgen.model import (
     Assumptions,
     Block,
@@ -39,6 +39,7 @@ from reportgen.model import (
 from reportgen.units import (
     DIMENSIONS,
     UnitProblem,
+    axis_unit,
     format_number,
     parse_quantity,
     table_display,
@@ -93,7 +94,8 @@ class _Evaluator:
             else:
                 inputs[name] = value
         if order != 1.0:
-            inputs[SPEED_INPUT] = inputs[SPEED_INPUT] * order
+            speed = speed_input(self.reg.calc_type.inputs) or ""
+            inputs[speed] = inputs[speed] * order
         return dataclasses.replace(self.ctx, inputs=inputs)
 
     def output(self, point: Point) -> CalcOutput:
@@ -173,11 +175,12 @@ def where(spec: CalcSpec, point: Point, units: str, reg: RegisteredCalc | None =
             continue
         sp = spec.spreads[name]
         pretty = name.replace("_", " ")
-        if sp.kind == "range" and (name in moved or name == SPEED_INPUT and _ORDER in moved):
+        is_speed = reg is not None and name == speed_input(reg.calc_type.inputs)
+        if sp.kind == "range" and (name in moved or is_speed and _ORDER in moved):
             dim = _dimension(spec, reg, name) if reg else "dimensionless"
             factor, unit = _written_unit(spec, name, dim)
             text = f"{format_number(value / factor, 4)} {unit}".strip()
-            at.append(text if name == SPEED_INPUT else f"{pretty} {text}")
+            at.append(text if is_speed else f"{pretty} {text}")
         elif sp.kind == "tolerance" and name in moved:
             sign = "+" if value > sp.nominal else "−"
             if sp.nominal:
@@ -445,16 +448,18 @@ def envelope_figure(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
     point = dict(best[main.id][1])
     ranges = [n for n in spec.spreads if spec.spreads[n].kind == "range"]
     moved = [n for n in ranges if _differs(point[n], spec.spreads[n].nominal)]
-    r = SPEED_INPUT if SPEED_INPUT in ranges else (moved or ranges)[0]
+    speed = speed_input(reg.calc_type.inputs)
+    r = speed if speed in ranges else (moved or ranges)[0]
     dim = main.value.dimension
     factor, xunit = _written_unit(spec, r, _dimension(spec, reg, r))
+
+    yfactor, ylabel = axis_unit(ctx.display, dim)
 
     def y(c: Check | None) -> float:
         if c is None or c.value is None or not math.isfinite(c.value.value):
             return math.nan
-        return table_display(c.value.value, dim, ctx.units)[0]
+        return c.value.value * yfactor
 
-    ylabel = table_display(1.0, dim, ctx.units)[1]
     others_at = tuple(point[o] for o in ranges if o != r)
     series, fills = [], []
     labels = dict(spec.orders)
@@ -480,9 +485,8 @@ def envelope_figure(spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
     g = main.governing
     assert g is not None and g.value is not None
     gx = point[r] / factor
-    gy = table_display(g.value.value, dim, ctx.units)[0]
-    limit = [] if main.limit is None else [
-        (table_display(main.limit.value, dim, ctx.units)[0], "criterion")]
+    gy = g.value.value * yfactor
+    limit = [] if main.limit is None else [(main.limit.value * yfactor, "criterion")]
     unit = f" ({ylabel})" if ylabel else ""
     return Figure(
         key="operating-envelope",

@@ -17,16 +17,21 @@ from dataclasses import dataclass, field
 from pathlib import Path, PurePosixPath
 from typing import Any
 
-from reportgen.calc.criteria import CriteriaLibrary, load_criteria
+from reportgen.calc.criteria import (
+    FIRM_CRITERIA_FOLDER,
+    CriteriaLibrary,
+    load_criteria,
+    origin_file,
+)
 from reportgen.calc.plugin_set import PluginSet
 from reportgen.calc.spec import Column, DataFile, InputSpec
 from reportgen.errors import JobError, Problem, nearest_hint
 from reportgen.job.orders import (
     MAX_ENVELOPE_POINTS,
-    SPEED_INPUT,
     envelope_points,
     has_running_speed,
     parse_orders,
+    speed_input,
 )
 from reportgen.job.paths import Kind, job_relative_path, path_parts, read_job_file
 from reportgen.model import Deviation, PackageInfo, RevisionEntry, ScheduleItem
@@ -281,6 +286,8 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         pkg = {}
     info, history, job_template, previous = v.package(pkg, path)
     template_dir = template_dir or job_template
+    if archived and template_dir is None and (path.parent / FIRM_CRITERIA_FOLDER).is_dir():
+        template_dir = path.parent  # the firm's criteria files the package embedded
     v.library = load_criteria(plugins, template_dir)
     attachments = v.attachments(pkg, path)
     calcs_raw = raw.get("calc", [])
@@ -307,6 +314,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
         calcs.extend(_schedule_calcs(v, schedule, plugins, seen, len(calcs_raw)))
         attachments = _with_schedule(v, attachments, schedule)
     attachments = v.with_data_files(attachments, calcs)
+    attachments = v.with_criteria_files(attachments, calcs, plugins)
     deviations = v.deviations(pkg, {c.id for c in calcs})
     if problems:
         raise JobError(problems)
@@ -784,8 +792,9 @@ class _Validator:
             orders, bad = parse_orders(inputs_raw["orders"])
             for fld, msg in bad:
                 self.add(msg, calc=label, field=f"inputs.{fld}")
-            if SPEED_INPUT not in inputs_raw:
-                self.add(f"orders multiply the running speed: give {SPEED_INPUT} (for example"
+            speed = speed_input(ct.inputs)
+            if speed not in inputs_raw:
+                self.add(f"orders multiply the running speed: give {speed} (for example"
                          " \"1480 rpm\")", calc=label, field="inputs.orders")
             inputs_raw = {k: v for k, v in inputs_raw.items() if k != "orders"}
         inputs, given = self._values(inputs_raw, ct.inputs, label, "inputs")
@@ -1089,6 +1098,45 @@ class _Validator:
                 out.append(a)
                 by_path[f.name] = a
                 names[base] = f.name
+        return tuple(out)
+
+    def with_criteria_files(self, attachments: tuple[JobAttachment, ...],
+                            calcs: list[CalcSpec], plugins: PluginSet
+                            ) -> tuple[JobAttachment, ...]:
+        """The attachments, and the firm's file of every criterion a calc names that came
+        from one (FIRM_CRITERIA_FOLDER), so that the package re-runs without the firm's
+        folder."""
+        out = list(attachments)
+        by_path = {a.path: a for a in out}
+        names = {a.name for a in out}
+        for c in calcs:
+            reg = plugins.calcs.get(c.plugin)
+            specs = ([("inputs", s) for s in reg.calc_type.inputs]
+                     + [("criteria", s) for s in reg.calc_type.criteria]) if reg else []
+            for table, sp in specs:
+                value = (c.inputs if table == "inputs" else c.criteria).get(sp.name)
+                if sp.kind != "criterion" or not isinstance(value, str):
+                    continue
+                found = origin_file(self.library.get(value))
+                if found is None:
+                    continue
+                name, data = found
+                rel = f"{FIRM_CRITERIA_FOLDER}/{name}"
+                if rel in by_path:
+                    if by_path[rel].data != data:
+                        self.add(f"the job folder's {rel!r} differs from the firm's criteria"
+                                 f" file of the same name that criterion {value!r} comes"
+                                 " from; rename one", calc=c.id, field=f"{table}.{sp.name}")
+                    continue
+                if name in RESERVED_NAMES or name in names:
+                    self.add(f"the firm's criteria file {name!r} would be embedded under a"
+                             " name another embedded file already uses; rename it",
+                             calc=c.id, field=f"{table}.{sp.name}")
+                    continue
+                a = JobAttachment(path=rel, name=name, data=data)
+                out.append(a)
+                by_path[rel] = a
+                names.add(name)
         return tuple(out)
 
     @staticmethod

@@ -2,7 +2,7 @@
 label = "blade pass" }]`` in ``[calc.inputs]``, read and checked here.
 
 A calc type has a running speed when it declares a frequency (or rotational speed) input
-named ``speed``.
+named ``speed`` or ``running_speed``.
 """
 
 from __future__ import annotations
@@ -12,8 +12,9 @@ from typing import Any
 
 from reportgen.calc.spec import InputSpec
 
-#: the input name of a calc's running speed, and the largest order accepted
-SPEED_INPUT = "speed"
+#: the input names a calc's running speed may have (the first a calc declares is it), and
+#: the largest order accepted
+SPEED_INPUTS = ("speed", "running_speed")
 MAX_ORDER = 1000.0
 MAX_ORDERS = 32
 #: points along each range of an operating envelope before refinement (odd: the mid-range
@@ -30,13 +31,23 @@ def envelope_points(ranges: int, tolerances: int, orders: int) -> int:
     return per_corner * (2**tolerances + 1) * max(orders, 1)
 
 
-def has_running_speed(specs: tuple[InputSpec, ...]) -> bool:
-    """Whether a calc type takes excitation orders (a frequency input named 'speed', and
-    no input of its own named 'orders')."""
+def speed_input(specs: tuple[InputSpec, ...]) -> str | None:
+    """The name of a calc type's running speed (a frequency input named as in
+    SPEED_INPUTS), or None when it has none or an input of its own named 'orders'."""
     names = {s.name: s for s in specs}
-    speed = names.get(SPEED_INPUT)
-    return ("orders" not in names and speed is not None and speed.kind == "quantity"
-            and speed.dimension in ("frequency", "rotational_speed"))
+    if "orders" in names:
+        return None
+    for name in SPEED_INPUTS:
+        speed = names.get(name)
+        if speed is not None and speed.kind == "quantity" and speed.dimension in (
+                "frequency", "rotational_speed"):
+            return name
+    return None
+
+
+def has_running_speed(specs: tuple[InputSpec, ...]) -> bool:
+    """Whether a calc type takes excitation orders (see :func:`speed_input`)."""
+    return speed_input(specs) is not None
 
 
 def parse_orders(raw: Any) -> tuple[tuple[tuple[float, str], ...], list[tuple[str, str]]]:

@@ -80,6 +80,7 @@ UNIT_FORMS: dict[str, tuple[str, ...]] = {
     "acceleration": ("A", "L/T2", "L*T-2", "gravity"),
     "frequency": ("H", "1/T", "D/T", "speed"),
     "angular_frequency": ("H", "1/T", "D/T", "speed"),
+    "angular_frequency_squared": ("D2/T2", "D/T2"),
     "rotational_speed": ("H", "1/T", "D/T", "speed"),
     "level": ("decibel",),
     "mass_length": ("M*L", "L*M"),

@@ -23,7 +23,7 @@ from reportgen.render.pdf import ASSET_SCHEME, asset_mime
 from reportgen.store import Store, default_cache_dir
 
 #: Bump when the drawing code changes, so cached assets of the old look are not reused.
-RENDERER_TAG = "assets/6"  # 6: figure layout, bands, small multiples, display units, labels in rows
+RENDERER_TAG = "assets/7"  # 7: equal-aspect panels with fixed limits keep them (box adjusts)
 
 #: One asset to draw: ("figure" | "equation", the block, the display system).
 AssetJob = tuple[str, Any, str]

@@ -142,7 +142,10 @@ def draw(fig: Figure) -> Any:
             if panel.y_range:
                 ax.set_ylim(*panel.y_range)
             if panel.equal_aspect:
-                ax.set_aspect("equal", adjustable="box" if grid else "datalim")
+                # fixed limits cannot move to keep the aspect: the box must (else
+                # matplotlib drops the limits and logs a warning the user sees)
+                fixed = grid or panel.y_range is not None or fig.x_range is not None
+                ax.set_aspect("equal", adjustable="box" if fixed else "datalim")
             if panel.title:
                 ax.set_title(panel.title, fontsize=6.5)
             if grid:

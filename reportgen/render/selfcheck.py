@@ -311,7 +311,8 @@ def self_check(pdf: bytes, doc: Document, embedded: Iterable[str] | None = None)
     for s in doc.sections:
         if not shown(text, _comparable(_norm(s.title)[:60])):
             problems.append(f"section title {s.title!r} is missing from the text")
-        for r in s.results:
+        sheet = s.calc_id in doc.schedule_ids  # a schedule item's sheet: its own selection
+        for r in doc.sheet_results(s) if sheet else s.results:
             if r.key_result:
                 value, _ = quantity_parts(r.quantity, doc.info.display or doc.info.units)
                 if _comparable(value) not in text:

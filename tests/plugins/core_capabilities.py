@@ -52,7 +52,7 @@ class Counted(CalcType):
 
     def compute(self, ctx):
         _count("compute", ctx.calc_id)
-        s = Sheet()
+        s = Sheet(self.inputs)
         w2 = s.equation("omega_n", "sqrt(k/m)", "angular_frequency", k=ctx.inputs["stiffness"],
                         m=ctx.inputs["mass"], key="omega_n", key_result=True,
                         description="Natural circular frequency")

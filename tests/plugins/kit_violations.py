@@ -17,6 +17,7 @@ class _Good(CalcType):
 
     def compute(self, ctx):
         s = Sheet()
+        s.declare(x="dimensionless")  # also where the input spec lacks its symbol
         s.equation("y", "x + 1", x=ctx.inputs["x"], key="y", description="Shifted")
         return s.output()
 
@@ -33,7 +34,8 @@ class Unprintable(_Good):
     def compute(self, ctx):
         s = Sheet()
         # exact in floating point, but at 6 printed figures both operands read 1.00000
-        s.equation("d", "a - b", a=1.0 + 1e-7, b=1.0, key="d", description="Difference")
+        s.equation("d", "a - b", a=1.0 + 1e-7, b=1.0, key="d", description="Difference",
+                   dims={"a": "dimensionless", "b": "dimensionless"})
         return s.output()
 
     def verify(self, ctx, output):

@@ -15,7 +15,7 @@ class VerifyDisagrees(CalcType):
     sources = (Source(key="none", citation="fixture, no source"),)
 
     def compute(self, ctx):
-        s = Sheet()
+        s = Sheet(self.inputs)
         s.equation("A", "x**2", "dimensionless", x=ctx.inputs["x"], key="area",
                    description="Square")
         return s.output()
