@@ -26,6 +26,7 @@ from reportgen.testing import (
     assert_calc_contract,
     compute,
     compute_calc,
+    job_toml,
     make_job,
     result,
     section_results,
@@ -623,3 +624,62 @@ def test_passage_criterion_makes_a_check_dwell_then_transient():
     c = next(c for c in _blocks(fast, Check) if c.id == "resonance-passage")
     r = _results(fast)
     assert r["displacement_amplitude"] < c.value.value < 0.0075 / (2 * 0.02 * 850)
+
+
+def test_steady_limit_applied_to_passage_makes_a_check():
+    # Rotating unbalance dwelt at resonance: X = U/(2ζm) (Rao §3.7); the flag applies the
+    # steady max_displacement to it. 221 µm against 100 µm fails, against 300 µm passes.
+    inputs = {"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+              "unbalance": "0.0075 kg*m", "speed": "980 rpm"}
+    x_dwell = 0.0075 / (2 * 0.02 * 850)
+    for limit, status in (("100 um", "fail"), ("300 um", "pass")):
+        doc = _doc(inputs, {"max_displacement": limit, "passage_uses_steady_limits": True})
+        c = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
+        assert c.status == status
+        assert c.value.value == pytest.approx(x_dwell, rel=1e-9)
+        assert c.limit.value == pytest.approx(float(limit.split()[0]) * 1e-6)
+    # without a steady displacement limit the flag has nothing to apply: not assessed
+    doc = _doc(inputs, {"passage_uses_steady_limits": "yes"})
+    c = next(c for c in _blocks(doc, Check) if c.id == "resonance-passage")
+    assert c.status == "info" and "max_displacement" in c.note
+
+
+def test_suspended_floor_near_the_forcing_is_a_failing_check():
+    # 980 rpm = 16.33 Hz; a 30 Hz floor is within a factor 2 of it (factor 2: common
+    # practice, no source): floor flexibility is not modelled by m·x'' + c·x' + k·x = F
+    inputs = {"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+              "unbalance": "0.0075 kg*m", "speed": "980 rpm", "support": "structure"}
+    for floor, status in (("30 Hz", "fail"), ("40 Hz", "pass"), (None, "fail")):
+        doc = _doc({**inputs, **({"support_natural_frequency": floor} if floor else {})})
+        c = next(c for c in _blocks(doc, Check) if c.id == "floor-flexibility")
+        assert c.status == status
+    assert "floor-flexibility" not in _checks(_doc({**inputs, "support": "grade"}))
+
+
+@pytest.mark.parametrize("flag,ok", [(True, True), (False, True), ("yes", True),
+                                     ("maybe", False), (1, False)])
+def test_the_passage_switch_reads_as_a_toml_boolean_in_check_and_schema(tmp_path, flag, ok):
+    # a yes/no switch may be written as TOML true/false (TOML 1.0 booleans); `reportgen
+    # check` and the JSON Schema (jsonschema, draft 2020-12) agree on what is accepted
+    import tomllib
+
+    jsonschema = pytest.importorskip("jsonschema")
+    from reportgen.calc.plugin_set import load_plugins
+    from reportgen.job.schema import job_schema
+
+    job = make_job({"plugin": "forced_response", "inputs": {
+        "mass": "100 kg", "stiffness": "400 kN/m", "damping_ratio": 0.05,
+        "force_amplitude": "500 N", "frequency": "8 Hz"},
+        "criteria": {"passage_uses_steady_limits": flag}})
+    path = tmp_path / "job.toml"
+    path.write_text(job_toml(job))
+    plugins = load_plugins()
+    try:
+        load_job(path, plugins)
+        loaded = True
+    except JobError as exc:
+        loaded = False
+        assert "passage_uses_steady_limits" in str(exc)
+    schema_ok = jsonschema.Draft202012Validator(job_schema(plugins)).is_valid(
+        tomllib.loads(path.read_text()))
+    assert loaded == schema_ok == ok

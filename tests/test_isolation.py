@@ -25,7 +25,7 @@ from reportgen_plugins.isolation import (
 from scipy import signal
 from scipy.optimize import minimize_scalar
 
-from reportgen import Caution, Figure, JobError, Table
+from reportgen import Caution, Figure, JobError, Note, Table
 from reportgen.calc.plugin_set import load_plugin_set
 from reportgen.cli import main
 from reportgen.job.load import load_job
@@ -523,10 +523,11 @@ def test_amplification_below_root_two_fails_both_checks():
 def test_contract_builds_a_pdf(tmp_path):
     built = assert_calc_contract(Isolation(), {"title": "Chiller on four springs",
                                                "inputs": CHILLER}, tmp_path)
-    assert built is not None and built.exit_code == 0
+    # the off-centre chiller's rocking is not modelled: its one failing check
+    assert built is not None and built.exit_code == 1
 
 
-@pytest.mark.parametrize("name,code", [("qep-104-chiller-ch1", 0), ("qep-105-genset-g1", 1)])
+@pytest.mark.parametrize("name,code", [("qep-104-chiller-ch1", 1), ("qep-105-genset-g1", 1)])
 def test_sample_jobs_build(tmp_path, capsys, name, code):
     out = tmp_path / "out"
     assert main(["build", str(SAMPLES / f"{name}.toml"), "--out", str(out)]) == code
@@ -539,9 +540,12 @@ def test_sample_jobs_build(tmp_path, capsys, name, code):
 
     text = extract_text(pdf.read_bytes())[1]
     assert "Mount loads, static deflections and natural frequencies" in text
-    if code == 0:
+    if name == "qep-104-chiller-ch1":
+        # the off-centre chiller passes every check but the rocking one, which its model
+        # lacks: a failing check with an accepted deviation (exit 1, fit to issue)
         assert calc["results"]["forcing_frequency"]["value"] == pytest.approx(1480 / 60)
-        assert all(s in ("pass", "info") for s in status.values())
+        assert {k for k, s in status.items() if s == "fail"} == {"rocking-not-modelled"}
+        assert "rigid_body_mounts" in text and "NOT FIT TO ISSUE" not in text
     else:
         assert status["efficiency"] == "fail" and "FAIL" in text
         assert data["package"]["status"] == "fail"
@@ -619,3 +623,153 @@ def test_rigid_body_limit_is_a_check():
     doc = _doc({"mass": "800 kg", "speed": "1450 rpm", "static_deflection": "10 mm",
                 "rigid_body_limit": "20 Hz"})
     assert _checks(doc)["rigid-body-validity"] == "fail"  # 24.2 Hz > 20 Hz
+
+
+# ---------------------------------------------------------------- elastomer stiffness ratio
+
+GENSET = {"mass": "5400 kg", "speed": "1500 rpm", "mounts": 6,
+          "stiffness_per_mount": "2500 kN/m", "damping_ratio": 0.08}
+
+
+@pytest.mark.parametrize("ratio", [1.2, 1.44, 1.8])
+def test_elastomer_natural_frequency_scales_by_root_of_the_ratio(ratio):
+    # f_n = (1/2π)√(k/m) (Thomson & Dahleh Ch. 2) with k = k_dyn = ratio·k_st, so f_n scales
+    # by √ratio exactly; the static deflection m·g/k_st does not change. Ratios 1.2–1.8 are
+    # the usual range for natural rubber and neoprene (Harris' Shock and Vibration Handbook,
+    # chapter on isolators: handbook range, from memory, page not cited).
+    steel = _results(_doc(GENSET))
+    rubber = _results(_doc({**GENSET, "mount_type": "elastomer",
+                            "dynamic_stiffness_ratio": ratio}))
+    assert rubber["natural_frequency"] == pytest.approx(
+        steel["natural_frequency"] * math.sqrt(ratio), rel=1e-12)
+    assert rubber["static_deflection"] == pytest.approx(steel["static_deflection"], rel=1e-12)
+    assert rubber["load_per_mount"] == pytest.approx(steel["load_per_mount"], rel=1e-12)
+    k_st = 6 * 2.5e6
+    assert rubber["dynamic_stiffness"] == pytest.approx(ratio * k_st, rel=1e-12)
+    # handbook form for elastomers: f_n = (1/2π)√(ratio·g/δ_st)
+    assert rubber["natural_frequency"] == pytest.approx(
+        math.sqrt(ratio * G / rubber["static_deflection"]) / (2 * math.pi), rel=1e-12)
+    # transmissibility from the dynamic stiffness: scipy.signal.freqs, independent of ours
+    m, zeta, f = 5400.0, 0.08, 25.0
+    assert rubber["transmissibility"] == pytest.approx(
+        _signal_t(m, ratio * k_st, zeta, f), rel=1e-9)
+    # required static stiffness = required dynamic stiffness / ratio; the required dynamic
+    # stiffness (a property of m, f and the target only) does not depend on the ratio
+    assert rubber["required_stiffness_per_mount"] == pytest.approx(
+        steel["required_stiffness_per_mount"] / ratio, rel=1e-12)
+    assert rubber["required_static_deflection"] == pytest.approx(
+        steel["required_static_deflection"] * ratio, rel=1e-12)
+
+
+def test_ratio_one_gives_todays_results():
+    # ratio 1 (steel springs, default or stated) changes nothing: the same numbers as before
+    # the ratio existed (and as the C-cases above check against the handbook)
+    plain = _results(_doc(GENSET))
+    stated = _results(_doc({**GENSET, "mount_type": "steel_spring",
+                            "dynamic_stiffness_ratio": 1.0}))
+    assert stated == plain
+    assert "dynamic_stiffness" not in plain
+
+
+def test_elastomer_second_method_agrees_with_the_dynamic_stiffness():
+    # the second method (scipy) is built from the dynamic stiffness; every row agrees
+    doc = _doc({**GENSET, "mount_type": "elastomer", "dynamic_stiffness_ratio": 1.4})
+    rows = doc.sections[0].verification
+    assert rows and all(r.agrees for r in rows)
+    assert "T at the required stiffness" in {r.quantity for r in rows}
+
+
+def test_steel_springs_with_a_ratio_are_accepted_and_stated():
+    doc = _doc({**GENSET, "dynamic_stiffness_ratio": 1.3})
+    notes = " ".join(b.text for b in _blocks(doc, Note))
+    assert "stated for steel springs" in notes and "1.3" in notes
+
+
+def test_elastomer_without_the_ratio_is_exit_2(tmp_path, capsys):
+    job = make_job(_calc({**GENSET, "mount_type": "elastomer"}))
+    path = tmp_path / "job.toml"
+    path.write_text(job_toml(job))
+    out = tmp_path / "out"
+    assert main(["build", str(path), "--out", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert "calc-1" in err and "dynamic_stiffness_ratio" in err
+    assert "Traceback" not in err
+    assert not out.exists() or not any(out.iterdir())
+
+
+# ---------------------------------------------------------------- passage through resonance
+
+
+def _passage(doc):
+    return next(c for c in doc.sections[0].checks if c.id == "resonance-passage")
+
+
+def test_steady_limit_applies_to_passage_as_a_check():
+    # T_p = exact peak of T(r, ζ) (Rao §9.10); the steady target allows T ≤ 1 − η_min = 0.1,
+    # so the passage fails: honest, a machine on mounts amplifies at resonance
+    doc = _doc(GENSET, {"passage_uses_steady_limits": True})
+    c = _passage(doc)
+    assert c.status == "fail"
+    assert c.limit.value == pytest.approx(0.10, rel=1e-12)
+    assert c.value.value == pytest.approx(_results(doc)["peak_transmissibility"], rel=1e-12)
+    # the same job without the flag says it is not assessed
+    assert _passage(_doc(GENSET)).status == "info"
+    assert _passage(_doc(GENSET)).description == "Passage through resonance not assessed"
+
+
+@pytest.mark.parametrize("t_run", ["2 s", "8 s"])
+def test_run_up_peak_is_below_the_dwell_peak(t_run):
+    # physical invariant: a finite sweep rate never reaches the steady resonant peak
+    # (Harris' Shock and Vibration Handbook, passage through resonance; the slow-sweep
+    # limit is the steady peak, tests/test_passage.py); a faster run-up peaks lower
+    doc = _doc({**GENSET, "run_up_time": t_run}, {"max_passage_transmissibility": 10})
+    r = _results(doc)
+    assert 1.0 < r["passage_transmissibility"] < r["peak_transmissibility"]
+    c = _passage(doc)
+    assert c.value.value == r["passage_transmissibility"] and "run-up" in c.note
+    assert "dwell" in _passage(_doc(GENSET, {"max_passage_transmissibility": 10})).note
+
+
+def test_faster_run_up_peaks_lower():
+    slow = _results(_doc({**GENSET, "run_up_time": "20 s"}))["passage_transmissibility"]
+    fast = _results(_doc({**GENSET, "run_up_time": "2 s"}))["passage_transmissibility"]
+    assert fast < slow
+
+
+# ---------------------------------------------------------------- models the calc lacks
+
+
+def test_rocking_is_flagged_when_loads_spread_or_mounts_are_few():
+    # one vertical mode is exact only with the centre of gravity over the mounts' centroid
+    # (Harris' Shock and Vibration Handbook, Ch. 3: heave and rocking decouple by symmetry);
+    # the 10 % load spread allowed before rocking must be modelled is common practice.
+    checks = {c.id: c for c in _doc(CHILLER).sections[0].checks}
+    rock = checks["rocking-not-modelled"]
+    # hand statics of the 3.6 m × 1.4 m rectangle: P = W/4·(1 + 2·e_x/(a/2)·… ), spread
+    # (P_max − P_min)/(W/4) = 2·(2e_x/a + 2e_y/b) for e = (−250, −80) mm
+    assert rock.value.value == pytest.approx(2 * (2 * 250 / 3600 + 2 * 80 / 1400), rel=1e-9)
+    assert rock.status == "fail" and "rigid_body_mounts" in rock.description
+    centred = {**CHILLER, "cg_x": "1800 mm", "cg_y": "700 mm"}
+    assert _checks(_doc(centred))["rocking-not-modelled"] == "pass"
+    two = _checks(_doc({**GENSET, "mounts": 2}))
+    assert two["rocking-not-modelled"] == "fail"
+    assert "rocking-not-modelled" not in _checks(_doc(GENSET))  # equal sharing, 6 mounts
+
+
+@pytest.mark.parametrize("floor,status", [(None, "fail"), ("12 Hz", "fail"),
+                                          ("45 Hz", "fail"), ("60 Hz", "pass")])
+def test_suspended_floor_needs_its_natural_frequency_apart_from_both(floor, status):
+    # 25 Hz forcing, 8.39 Hz mounted: a floor within a factor 2 of either couples with it
+    # (factor 2: common practice, no source); on grade there is no such check
+    inputs = {**GENSET, "support": "structure"}
+    if floor:
+        inputs["support_natural_frequency"] = floor
+    doc = _doc(inputs)
+    c = next(c for c in doc.sections[0].checks if c.id == "floor-flexibility")
+    assert c.status == status and "Floor flexibility is not modelled" in c.description
+    if floor:
+        f_floor = float(floor.split()[0])
+        fn = _results(doc)["natural_frequency"]
+        assert c.value.value == pytest.approx(
+            min(max(f_floor / x, x / f_floor) for x in (25.0, fn)), rel=1e-12)
+    assert "floor-flexibility" not in _checks(_doc(GENSET))

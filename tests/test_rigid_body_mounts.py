@@ -369,6 +369,34 @@ def test_every_fixed_name_and_the_vertical_force_transmissibility(rg_plugins):
                for n in range(1, 7))
 
 
+def test_elastomer_ratio_scales_every_mode_by_its_root_and_leaves_the_statics(rg_plugins):
+    # Every mount rate times κ_d makes K → κ_d·K with M unchanged, so each eigenvalue of
+    # K·φ = ω²·M·φ scales by κ_d and each frequency by √κ_d (Thomson & Dahleh Ch. 6, the
+    # eigenvalue problem); the static loads (ratios of stiffnesses) do not change, while the
+    # deflections of the static rates do not change either (statics use the maker's rates).
+    case = wave2_case("R2_rigid_body_4_mounts_below_CG_coupled_rocking")
+    calc = case_calc(case)
+    steel = compute(make_job(calc), rg_plugins)
+    ratio = 1.5
+    rubber = compute(make_job({**calc, "inputs": {
+        **calc["inputs"], "mount_type": "elastomer", "dynamic_stiffness_ratio": ratio}}),
+        rg_plugins)
+    assert frequencies(rubber) == pytest.approx(
+        [f * math.sqrt(ratio) for f in frequencies(steel)], rel=1e-9)
+    for n in range(1, 5):
+        for key in (f"mount_load_{n}", f"mount_deflection_{n}"):
+            assert result(rubber, key) == pytest.approx(result(steel, key), rel=1e-9,
+                                                        abs=1e-12)
+    sec = rubber.sections[0]
+    assert sec.verification and all(v.agrees for v in sec.verification)
+    assert assert_equations_reproduce(rubber) > 10
+    # an elastomer without its ratio is refused, naming the field (exit 2 at build)
+    from reportgen import JobError
+    with pytest.raises(JobError, match="dynamic_stiffness_ratio"):
+        compute(make_job({**calc, "inputs": {**calc["inputs"], "mount_type": "elastomer"}}),
+                rg_plugins)
+
+
 def test_running_speed_takes_excitation_orders(rg_plugins):
     """Issue 17: a calc type with a running speed takes orders; for rigid_body_mounts the
     speed is `running_speed`. Each mode must sit below the excitation / r_min (r_min = √2,

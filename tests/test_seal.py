@@ -1,6 +1,6 @@
 """The digital seal and verify of what the pages show.
 
-A final sample package (QEP-2417-V-104 revision B, checked, approved, every check passes)
+A final sample package (QEP-2417-V-104 revision B, checked, approved, fit to issue)
 is built once; an invented firm's self-signed certificate is made at test time with
 `cryptography` (never committed). Each tampering the issue names is made here the way an
 attacker would and must be detected and named; re-saving an untouched package with qpdf
@@ -45,7 +45,9 @@ def built(tmp_path_factory) -> dict[str, Path]:
 
     root = tmp_path_factory.mktemp("seal")
     result = build_job(FINAL, load_plugins(), BuildOptions(out_dir=root / "out", workers=1))
-    assert result.exit_code == 0 and result.review_state == "approved"
+    # one failing check (rocking not modelled) carries an accepted deviation: it still exits
+    # 1, and --final and the seal accept it
+    assert result.exit_code == 1 and result.review_state == "approved"
     key = root / "seal.p12"
     key.write_bytes(seal.make_test_key("S. Brannock", "Quillmoor Engineering Partners",
                                        PASS.encode()))
@@ -224,8 +226,9 @@ def test_build_final_seal_key_and_in_place_sealing(built, tmp_path, monkeypatch,
                  str(built["key"])]) == 2  # without --final: refused
     assert "--seal-key needs --final" in capsys.readouterr().err
     assert not (tmp_path / "b").exists()
+    # exit 1: its one failing check is accepted as a deviation, which --final allows
     assert main(["build", str(FINAL), "--out", str(tmp_path / "b"), "--final",
-                 "--seal-key", str(built["key"]), "--jobs", "1"]) == 0
+                 "--seal-key", str(built["key"]), "--jobs", "1"]) == 1
     pdf = tmp_path / "b" / f"{STEM}.pdf"
     states = seal.seal_states(pdf.read_bytes())
     assert len(states) == 1 and states[0].holds

@@ -9,7 +9,12 @@ from __future__ import annotations
 
 import math
 
-from reportgen_plugins.mechanics import damping_inputs, damping_problems, natural_frequency
+from reportgen_plugins.mechanics import (
+    damping_inputs,
+    damping_problems,
+    natural_frequency,
+    support_inputs,
+)
 
 from reportgen import (
     Assumptions,
@@ -93,6 +98,7 @@ class ForcedResponse(CalcType):
         InputSpec(name="speed_range", symbol="N_range",
                   description="Speed range of the run-up plot", dimension="frequency",
                   required=False, kind="pair", minimum=0.0, maximum=1e4),
+        *support_inputs(),
         InputSpec(name="run_up_time", symbol="t_run",
                   description="Time from rest to the operating frequency at constant"
                               " acceleration (start-up; run-down taken as no slower)",
@@ -120,6 +126,10 @@ class ForcedResponse(CalcType):
         InputSpec(name="max_transmitted_force", symbol="F_T,max",
                   description="Largest acceptable force amplitude into the support",
                   dimension="force", required=False, positive=True),
+        InputSpec(name="passage_uses_steady_limits", symbol="steady",
+                  description="The steady-state displacement limit (max_displacement)"
+                              " applies to the passage through resonance too",
+                  kind="choice", choices=("yes", "no"), required=False),
     )
     sources = (THOMSON, RAO)
     verification_cases = (
@@ -193,6 +203,7 @@ class ForcedResponse(CalcType):
         checks.write(s, kind, crit, v, band, ctx.units)
         if passes:
             working.passage(s, kind, p, given, crit, v, ctx.units)
+        checks.support(s, p, v)
         if v.margin < min_margin:
             s.add(Caution(text=text.band_caution(v.margin, min_margin, v.D)))
         s.add(Note(text=text.RATED_DATA))

@@ -3,8 +3,9 @@
 from __future__ import annotations
 
 from collections.abc import Mapping
+from typing import Any
 
-from reportgen_plugins.mechanics import quantity_text
+from reportgen_plugins.mechanics import floor_check, quantity_text
 
 from reportgen import Sheet, linear_validity_check
 
@@ -42,3 +43,8 @@ def write(s: Sheet, kind: str, crit: Mapping[str, float], v: Printed,
         s.check("max-transmitted-force", "Force into the support within the limit",
                 value=v.F_T, limit=crit["max_transmitted_force"], comparison="<=",
                 dimension="force")
+
+
+def support(s: Sheet, p: Mapping[str, Any], v: Printed) -> None:
+    """The model's rigid support: a check when the job says the support is a structure."""
+    floor_check(s, p, v.f, v.f_n)

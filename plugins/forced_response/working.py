@@ -211,8 +211,10 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
     steady amplitude of a dwell at resonance); information when no criterion is given."""
     lead = text.passage_lead(kind, v.r, v.f_n)
     if v.zeta == 0:
+        judged = "max_passage_displacement" in crit or (
+            crit.get("passage_uses_steady_limits") == "yes" and "max_displacement" in crit)
         s.check("resonance-passage", "Passage through resonance: undamped, the amplitude is"
-                " unbounded", status="fail" if "max_passage_displacement" in crit else "info",
+                " unbounded", status="fail" if judged else "info",
                 note=text.passage_note(lead, "State the damping."))
         return
     x_res = passage_amplitude(s, kind, p, given, p["mass"], p["stiffness"], v.zeta,
@@ -242,13 +244,22 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
                    f" {quantity_text(x_res, 'length', units)} for a dwell at resonance.")
         else:
             how = ("Run-up too long to integrate within the cost bound: " + how)
+    steady = crit.get("passage_uses_steady_limits") == "yes"
     if "max_passage_displacement" in crit:
         s.check("resonance-passage", "Displacement while passing through resonance within"
                 " the limit", value=value, limit=crit["max_passage_displacement"],
                 comparison="<=", dimension="length", note=text.passage_note(lead, how))
+    elif steady and "max_displacement" in crit:
+        s.check("resonance-passage", "Displacement while passing through resonance within"
+                " the steady-state limit", value=value, limit=crit["max_displacement"],
+                comparison="<=", dimension="length",
+                note=text.passage_note(lead, how + " The job applies the steady-state"
+                                       " displacement limit to the passage."))
     else:
         s.check("resonance-passage", "Passage through resonance not assessed",
                 status="info", value=value, dimension="length",
-                note=text.passage_note(lead, how + " No passage criterion"
-                                       " (max_passage_displacement) is given."))
-
+                note=text.passage_note(lead, how + (
+                    " The job applies the steady-state limits to the passage, but gives no"
+                    " steady displacement limit (max_displacement)." if steady else
+                    " No passage criterion (max_passage_displacement, or"
+                    " passage_uses_steady_limits with max_displacement) is given.")))

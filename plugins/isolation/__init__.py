@@ -6,7 +6,13 @@ isolation efficiency, the mounts the target needs, and each mount's share of the
 
 from __future__ import annotations
 
-from reportgen_plugins.mechanics import natural_frequency
+from reportgen_plugins.mechanics import (
+    mount_type_inputs,
+    mount_type_problems,
+    natural_frequency,
+    stiffness_ratio,
+    support_inputs,
+)
 
 from reportgen import (
     Assumptions,
@@ -29,6 +35,7 @@ from . import checks, figures, selection, text, working
 from .method import (
     EXCITATION_INPUTS,
     ISOLATOR_INPUTS,
+    dynamic_stiffness,
     forcing_frequency,
     lifted_mounts,
     loads,
@@ -106,10 +113,16 @@ class Isolation(CalcType):
         InputSpec(name="rated_deflection", symbol="delta_rated", description="Rated"
                   " deflection of the selected mount (maker's data)", dimension="length",
                   required=False, positive=True, maximum=1.0),
+        *mount_type_inputs(),
         selection.CATALOGUE_INPUT,
         InputSpec(name="solid_deflection", symbol="delta_solid", description="Deflection"
                   " of the mount at which the spring goes solid (maker's data)",
                   dimension="length", required=False, positive=True, maximum=1.0),
+        *support_inputs(),
+        InputSpec(name="run_up_time", symbol="t_run",
+                  description="Time from rest to the running speed at constant"
+                              " acceleration (start-up; run-down taken as no slower)",
+                  dimension="time", required=False, positive=True, maximum=3600.0),
         InputSpec(name="rigid_body_limit", symbol="f_rigid", description="Highest frequency"
                   " at which machine and base act as one rigid body (below the base's first"
                   " flexural mode)", dimension="frequency", required=False, positive=True,
@@ -126,6 +139,10 @@ class Isolation(CalcType):
                   description="Largest acceptable transmissibility while passing through"
                               " resonance at start-up and shut-down", required=False,
                   positive=True, maximum=1e3),
+        InputSpec(name="passage_uses_steady_limits", symbol="steady",
+                  description="The steady-state limit applies to the passage through"
+                              " resonance too (T ≤ 1 − η_min)", kind="choice",
+                  choices=("yes", "no"), required=False),
         InputSpec(name="min_travel_allowance", symbol="a_travel", description="Travel to"
                   " solid beyond the operating deflection, as a fraction of it",
                   default=0.5, minimum=0.0, maximum=10.0, default_note="common practice"),
@@ -167,11 +184,12 @@ class Isolation(CalcType):
                              "describe the mounts by exactly one of " + ", ".join(
                                  ISOLATOR_INPUTS) + (f"; found {', '.join(isolator)}"
                                                      if isolator else "")))
+        problems += mount_type_problems(inputs, given)
         problems += _layout_problems(inputs, given)
         problems += selection.problems(inputs)
         if not problems:
             f = forcing_frequency(inputs)
-            fn = natural_frequency(total_stiffness(inputs, given), inputs["mass"])
+            fn = natural_frequency(dynamic_stiffness(inputs, given), inputs["mass"])
             if inputs["damping_ratio"] == 0.0 and abs(f / fn - 1.0) < 1e-9:
                 problems.append(("inputs.damping_ratio", "the excitation is at the natural"
                                  " frequency and the damping is zero: the transmissibility is"
@@ -185,20 +203,26 @@ class Isolation(CalcType):
         s.add(Assumptions(items=text.assumptions(ctx.given, uneven)),
               Paragraph(title="Method", text=text.METHOD))
         iso = working.operating_point(s, p, ctx.given)
+        if working.shows_ratio(p):
+            s.add(Note(text=text.ratio_note(p.get("mount_type", "steel_spring"),
+                                            stiffness_ratio(p))))
         mount = loads(p)
         ld = working.mount_loads(s, p, mount, iso, uneven, units)
         tg = working.target(s, p, crit["min_efficiency"], iso.f)
-        s.add(figures.mount_table(mount_rows(mount, iso.k_m, tg.f_n_req, equal=not uneven),
+        ratio = stiffness_ratio(p)
+        s.add(figures.mount_table(mount_rows(mount, iso.k_m, tg.f_n_req, equal=not uneven,
+                                             ratio=ratio),
                                   p.get("mount_positions"), len(mount), ctx.display))
         if uneven and ld.P_min > 0:
             s.add(Note(text=text.per_position_note(ld.P_min, tg.delta_req, tg.k_m_req, units)))
         selection.write(s, p, mount, tg.delta_req, units)
         peak = working.peak(s, p["damping_ratio"])
-        checks.write(s, p, crit, iso, ld, tg, peak, uneven, units)
+        checks.write(s, p, crit, iso, ld, tg, peak, uneven, units, ctx.given)
         s.add(figures.transmissibility_chart(iso.r, iso.T, p["damping_ratio"], tg.T_req,
                                              tg.r_req),
               figures.selection_chart(iso.f, p["damping_ratio"], iso.delta_st, iso.eta,
-                                      tg.delta_req, crit["min_efficiency"], ctx.display),
+                                      tg.delta_req, crit["min_efficiency"], ctx.display,
+                                      ratio=ratio),
               *(Caution(text=t) for t in text.CAUTIONS))
         if "damping_ratio" not in ctx.given:  # guidance where the damping is assumed
             s.add(Paragraph(title="Typical damping of isolators", text=text.TYPICAL_DAMPING))

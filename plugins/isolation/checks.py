@@ -5,17 +5,19 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
-from reportgen_plugins.mechanics import quantity_text
+from reportgen_plugins.mechanics import floor_check, quantity_text
+from reportgen_plugins.mechanics.passage import MAX_CYCLES, run_up_cycles, run_up_peak
 
 from reportgen import Sheet, linear_validity_check
-from reportgen.units import format_number
+from reportgen.units import STANDARD_GRAVITY, format_number
 
 from .method import SQRT2, peak_ratio, transmissibility
 from .working import Isolator, Loads, Target
 
 
-def write(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, float], iso: Isolator,
-          ld: Loads, tg: Target, peak: float, uneven: bool, units: str) -> None:
+def write(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, Any], iso: Isolator,
+          ld: Loads, tg: Target, peak: float, uneven: bool, units: str,
+          given: frozenset[str] = frozenset()) -> None:
     zeta, fn = p["damping_ratio"], iso.f_n
     s.check("isolation-exists", "Isolation exists: frequency ratio above √2", value=iso.r,
             limit=SQRT2, comparison=">")
@@ -52,26 +54,77 @@ def write(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, float], iso: Isolat
                 " validity limit of machine and base", value=iso.f,
                 limit=p["rigid_body_limit"], comparison="<=", dimension="frequency",
                 note="above it the base flexes and the one-mass model does not hold")
-    passage(s, crit, iso, peak, zeta)
+    passage(s, p, crit, iso, tg, peak, zeta, given)
+    rocking(s, p, ld)
+    floor_check(s, p, iso.f, fn)
 
 
-def passage(s: Sheet, crit: Mapping[str, float], iso: Isolator, peak: float,
-            zeta: float) -> None:
-    """Passage through resonance: a check when the job gives a passage criterion, else
-    stated as not assessed. The value is the steady peak a dwell at resonance reaches."""
+def rocking(s: Sheet, p: Mapping[str, Any], ld: Loads) -> None:
+    """A failing check where the one vertical mode is not enough: fewer than three mounts,
+    or mount loads that differ by more than ROCKING_SPREAD of their mean (the centre of
+    gravity off the mounts' centroid couples heave with rocking)."""
+    n = p["mounts"]
+    what = ("Rocking of the mount set is not modelled: check it with rigid_body_mounts")
+    if n < 3:
+        s.check("rocking-not-modelled", what, status="fail",
+                note=f"{'one mount' if n == 1 else 'two mounts'} cannot keep the machine from"
+                     " rocking; this calc models the vertical mode only")
+    elif "mount_positions" in p:
+        mean = p["mass"] * STANDARD_GRAVITY / n
+        spread = (ld.P_max - ld.P_min) / mean
+        s.check("rocking-not-modelled", what, value=spread, limit=ROCKING_SPREAD,
+                comparison="<=",
+                note="mount load spread (P_max − P_min)/(W/n): beyond"
+                     f" {format_number(ROCKING_SPREAD * 100, 3)} % (common practice) heave and"
+                     " rocking couple")
+
+
+def passage(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, Any], iso: Isolator,
+            tg: Target, peak: float, zeta: float, given: frozenset[str]) -> None:
+    """Passage through resonance: a check against max_passage_transmissibility, or against
+    the steady limit T_req = 1 − η_min when the job says the steady limits apply; else
+    stated as not assessed. The value is the transient peak of the stated run-up, or, with
+    no run-up time, the steady peak a dwell at resonance reaches."""
     fn = iso.f_n
     where = (f"peak at about {format_number(fn * peak_ratio(zeta), 3)} Hz"
              f" ({format_number(fn * peak_ratio(zeta) * 60, 3)} rpm), reached by a dwell"
              " at resonance; the machine passes it at every start and stop" if zeta > 0
              else "undamped mounts: unbounded at resonance; state the isolator's damping")
+    if zeta > 0 and "run_up_time" in given:
+        peak, where = _run_up(s, p, iso, zeta, peak, where)
     if "max_passage_transmissibility" in crit:
         s.check("resonance-passage", "Peak transmissibility while passing through resonance"
                 " within the limit", value=peak, limit=crit["max_passage_transmissibility"],
                 comparison="<=", note=where)
+    elif crit.get("passage_uses_steady_limits") == "yes":
+        s.check("resonance-passage", "Peak transmissibility while passing through resonance"
+                " within the steady limit T_req = 1 − η_min", value=peak, limit=tg.T_req,
+                comparison="<=", note=where + "; the job applies the steady-state limit to"
+                " the passage")
     else:
         s.check("resonance-passage", "Passage through resonance not assessed",
                 status="info", value=peak if zeta > 0 else None,
-                note=where + "; no passage criterion (max_passage_transmissibility) given")
+                note=where + "; no passage criterion (max_passage_transmissibility or"
+                             " passage_uses_steady_limits) given")
+
+
+def _run_up(s: Sheet, p: Mapping[str, Any], iso: Isolator, zeta: float, dwell: float,
+            dwell_text: str) -> tuple[float, str]:
+    """The transient transmissibility peak of a run-up from rest at constant acceleration
+    to the running speed in the stated time (force of constant amplitude), or the dwell
+    peak where the run-up is too long to integrate."""
+    f_end, t_ramp = iso.f, p["run_up_time"]
+    if run_up_cycles(f_end, iso.f_n, t_ramp, zeta) > MAX_CYCLES:
+        return dwell, "run-up too long to integrate within the cost bound: " + dwell_text
+    run = run_up_peak(f_end, iso.f_n, zeta, t_ramp, 0)
+    value = s.result("passage_transmissibility", run.force_ratio, "dimensionless", "T_pass",
+                     "Largest transmissibility while passing through resonance (transient"
+                     " run-up, integrated)")
+    return value, (f"transient of the stated run-up from rest at constant acceleration"
+                   f" ({format_number(f_end / t_ramp, 3)} Hz/s), integrated in time: the"
+                   f" response peaks near"
+                   f" {format_number(run.peak_frequency, 3)} Hz, against a steady peak"
+                   f" T_p = {format_number(dwell, 4)} for a dwell at resonance")
 
 
 def rated_data(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, float], iso: Isolator,
@@ -81,9 +134,12 @@ def rated_data(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, float], iso: I
     deflection by the stated allowance."""
     if "rated_load_per_mount" in p and "rated_deflection" in p:
         implied = iso.k_m * p["rated_deflection"]
+        mismatch = abs(implied / p["rated_load_per_mount"] - 1.0)
+        if mismatch < 1e-12:  # data that agree exactly print 0, not the round-off
+            mismatch = 0.0
         s.check("rated-data-consistency", "Isolator data agree: spring rate × rated"
-                " deflection within ±10 % of the rated load", value=abs(
-                    implied / p["rated_load_per_mount"] - 1.0), limit=RATED_DATA_TOLERANCE,
+                " deflection within ±10 % of the rated load", value=mismatch,
+                limit=RATED_DATA_TOLERANCE,
                 comparison="<=",
                 note=f"k_m·δ_rated = {quantity_text(implied, 'force', units)} against a rated"
                      f" {quantity_text(p['rated_load_per_mount'], 'force', units)}"
@@ -99,5 +155,7 @@ def rated_data(s: Sheet, p: Mapping[str, Any], crit: Mapping[str, float], iso: I
                      " (common practice)")
 
 
+#: mount loads spread beyond this fraction of their mean: rocking must be modelled
+ROCKING_SPREAD = 0.10
 #: spring rate × rated deflection may differ from the rated load by this fraction
 RATED_DATA_TOLERANCE = 0.10

@@ -43,14 +43,14 @@ def transmissibility_chart(r_op: float, t_op: float, zeta: float, t_req: float,
 
 
 def selection_chart(f: float, zeta: float, d_op: float, eta_op: float, d_req: float,
-                    eta_min: float, display: str) -> Figure:
-    g = STANDARD_GRAVITY
+                    eta_min: float, display: str, ratio: float = 1.0) -> Figure:
+    g = STANDARD_GRAVITY * ratio  # an elastomer's f_n = √(κ_d·g/δ_st)/2π
     scale, unit = axis_unit(display, "length")  # the package's length unit
     d_sqrt2 = 2.0 * g / (2 * math.pi * f) ** 2  # deflection at r = √2
     d_lo = max(min(0.8 * d_sqrt2, 0.8 * d_op), 1e-5)  # the selected point inside the axes
     d_hi = max(0.1, 2.5 * d_op, 2.5 * d_req)
     d = np.geomspace(d_lo, d_hi, 160)
-    r = f / frequency_from_deflection(d)
+    r = f / frequency_from_deflection(d / ratio)
     eff = 100.0 * (1.0 - transmissibility(r, zeta))
     series = [Series(x=_r(d * scale), y=_r(eff), label=f"ζ = {format_number(zeta, 3)}"
                      " (stated)", emphasis=True)]

@@ -13,15 +13,16 @@ from reportgen_plugins.mechanics import (
     frequency_from_deflection,
     peak_ratio,
     required_ratio,
+    stiffness_ratio,
     transmissibility,
 )
 
 from reportgen.units import STANDARD_GRAVITY
 
-__all__ = ["COMPARISON_DAMPING", "EXCITATION_INPUTS", "ISOLATOR_INPUTS", "SQRT2", "MountRow",
-           "forcing_frequency", "lifted_mounts", "loads", "mount_loads", "mount_rows",
-           "peak_ratio", "required_ratio", "second_moments", "total_stiffness",
-           "transmissibility"]
+__all__ = ["COMPARISON_DAMPING", "EXCITATION_INPUTS", "ISOLATOR_INPUTS", "SQRT2",
+           "MountRow", "dynamic_stiffness", "forcing_frequency", "lifted_mounts", "loads",
+           "mount_loads", "mount_rows", "peak_ratio", "required_ratio", "second_moments",
+           "total_stiffness", "transmissibility"]
 
 SQRT2 = math.sqrt(2.0)
 #: The other damping ratios drawn beside the stated one (typical isolator range).
@@ -31,7 +32,8 @@ EXCITATION_INPUTS = ("speed", "frequency")
 
 
 def total_stiffness(inputs: Mapping[str, Any], given: frozenset[str] | set[str]) -> float:
-    """Total vertical stiffness from whichever isolator description the job gives."""
+    """Total vertical static stiffness from whichever isolator description the job gives
+    (a stated natural frequency is a dynamic one: divided by the dynamic stiffness ratio)."""
     m, n = inputs["mass"], inputs["mounts"]
     if "stiffness" in given:
         return float(inputs["stiffness"])
@@ -39,7 +41,13 @@ def total_stiffness(inputs: Mapping[str, Any], given: frozenset[str] | set[str])
         return float(n * inputs["stiffness_per_mount"])
     if "static_deflection" in given:
         return float(m * STANDARD_GRAVITY / inputs["static_deflection"])
-    return float(m * (2.0 * math.pi * inputs["natural_frequency"]) ** 2)
+    return float(m * (2.0 * math.pi * inputs["natural_frequency"]) ** 2
+                 / stiffness_ratio(inputs))
+
+
+def dynamic_stiffness(inputs: Mapping[str, Any], given: frozenset[str] | set[str]) -> float:
+    """The stiffness the vibration sees: k_dyn = (k_dyn/k_st)·k_st."""
+    return stiffness_ratio(inputs) * total_stiffness(inputs, given)
 
 
 def forcing_frequency(inputs: Mapping[str, Any]) -> float:
@@ -113,8 +121,9 @@ class MountRow:
 
 
 def mount_rows(mount_loads_: Sequence[float], km: float, fn_req: float,
-               equal: bool) -> tuple[MountRow, ...]:
-    """The mount table's rows: one for all mounts when they share equally."""
+               equal: bool, ratio: float = 1.0) -> tuple[MountRow, ...]:
+    """The mount table's rows: one for all mounts when they share equally. ``km`` is the
+    static stiffness; frequencies use ratio·km, and the stiffness for target is static."""
     g = STANDARD_GRAVITY
     w = sum(mount_loads_)
     wr2 = (2 * math.pi * fn_req) ** 2
@@ -124,6 +133,7 @@ def mount_rows(mount_loads_: Sequence[float], km: float, fn_req: float,
         d = load / km
         rows.append(MountRow(load=load,
                              share=100.0 / len(mount_loads_) if equal else 100.0 * load / w,
-                             deflection=d, natural_frequency=frequency_from_deflection(d),
-                             stiffness_for_target=load * wr2 / g))
+                             deflection=d,
+                             natural_frequency=frequency_from_deflection(d / ratio),
+                             stiffness_for_target=load * wr2 / g / ratio))
     return tuple(rows)

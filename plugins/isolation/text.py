@@ -63,13 +63,12 @@ def sharing(p: Mapping[str, Any], loads: tuple[float, ...], units: str) -> str:
     return (f"{kind} Vertical equilibrium and moment equilibrium about the mounts' centroid"
             f" (x_c, y_c) = ({quantity_text(xc, 'length', units)},"
             f" {quantity_text(yc, 'length', units)})"
-            " then give P_i = W/n + W·[(x_i − x_c)(e_x·S_yy − e_y·S_xy) +"
-            " (y_i − y_c)(e_y·S_xx − e_x·S_xy)]/(S_xx·S_yy − S_xy²), where (e_x, e_y) ="
+            " then give P_i = W/n + b_x·(x_i − x_c) + b_y·(y_i − y_c), with b_x and b_y below,"
+            " where (e_x, e_y) ="
             f" ({quantity_text(ex, 'length', units)}, {quantity_text(ey, 'length', units)})"
             " is the centre of gravity's offset from the centroid and S_xx = Σ(x_i − x_c)²,"
-            " S_yy = Σ(y_i − y_c)², S_xy = Σ(x_i − x_c)(y_i − y_c). Written as"
-            " P_i = W/n + b_x·(x_i − x_c) + b_y·(y_i − y_c), the loads satisfy ΣP_i = W and"
-            " ΣP_i·(x_i, y_i) = W·(x_G, y_G); all are in compression.")
+            " S_yy = Σ(y_i − y_c)², S_xy = Σ(x_i − x_c)(y_i − y_c). The loads satisfy"
+            " ΣP_i = W and ΣP_i·(x_i, y_i) = W·(x_G, y_G); all are in compression.")
 
 
 TARGET = (
@@ -121,14 +120,12 @@ CAUTIONS = (
     " seismic and wind loads by restrained mounts or snubbers designed to the local"
     " code. Restraints must keep their working clearance so that they do not bridge"
     " the isolators in normal running.",
-    "Floor flexibility: the result assumes a rigid floor. The mounts should deflect"
-    " many times more than the floor does under the same load (at least 10 times is"
-    " common practice); on long or light floor spans the floor and the"
-    " mounts act in series, the floor's own resonances may lie near the running"
-    " speed, and the isolation is less than calculated. Check the floor separately.",
-    "Mount selection must follow the isolator maker's rated data (rated load, rated"
-    " deflection, spring rate, lateral stability and damping) and the local codes;"
-    " this calculation states what the mounts must achieve, not which product to buy.",
+    "Floor flexibility: the result assumes a rigid floor. The mounts should deflect at"
+    " least 10 times more than the floor under the same load (common practice); on long"
+    " or light spans the floor's own resonances may lie near the running speed and the"
+    " isolation is less. Check the floor separately.",
+    "Mount selection must follow the isolator maker's rated data (rated load and"
+    " deflection, spring rate, lateral stability, damping) and the local codes.",
 )
 
 
@@ -142,3 +139,16 @@ def lifted(lifted_mounts: list[tuple[int, float]]) -> str:
     return (f"the centre of gravity lies {where} the region the mounts can carry in"
             f" compression: {which}. Check cg_x, cg_y and mount_positions, or add or move"
             " mounts")
+
+
+def ratio_note(mount_type: str, ratio: float) -> str:
+    """What the dynamic-to-static stiffness ratio changes, and for steel springs that the
+    stated ratio is used as given."""
+    head = (f"The mounts' dynamic stiffness is κ_d = {format_number(ratio, 3)} times their"
+            " static stiffness.")
+    if mount_type != "elastomer":
+        head += (" A ratio other than 1 is stated for steel springs, whose dynamic and"
+                 " static stiffness are normally equal; it is used as stated.")
+    return (head + " Static deflection and mount loads use the static stiffness (the maker's"
+            " rate); the natural frequency, transmissibility, efficiency and the stiffness the"
+            " target needs use the dynamic stiffness, so that f_n = √(κ_d·g/δ_st)/2π.")

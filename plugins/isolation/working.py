@@ -36,6 +36,7 @@ class Isolator:
     r: float
     T: float
     eta: float
+    k_dyn: float
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -71,9 +72,20 @@ def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Is
         f = s.result("forcing_frequency", p["frequency"], "frequency", "f",
                      "Forcing frequency", key_result=True)
     k, km = _stiffness(s, p, given, m, n, g)
-    fn = s.equation("f_n", "sqrt(k/m)/(2*pi)", "frequency", k=k, m=m,
-                    key="natural_frequency", key_result=True,
-                    description="Vertical natural frequency on the mounts")
+    kd = k
+    if shows_ratio(p):
+        kd = s.equation("k_dyn", "kappa_d*k", "stiffness", kappa_d=p["dynamic_stiffness_ratio"],
+                        k=k, key="dynamic_stiffness",
+                        description="Total dynamic stiffness: the stiffness the vibration"
+                                    " sees (static stiffness × dynamic-to-static ratio)")
+        fn = s.equation("f_n", "sqrt(k_dyn/m)/(2*pi)", "frequency", k_dyn=kd, m=m,
+                        key="natural_frequency", key_result=True,
+                        description="Vertical natural frequency on the mounts (dynamic"
+                                    " stiffness)")
+    else:
+        fn = s.equation("f_n", "sqrt(k/m)/(2*pi)", "frequency", k=k, m=m,
+                        key="natural_frequency", key_result=True,
+                        description="Vertical natural frequency on the mounts")
     dst = s.equation("delta_st", "m*g_n/k", "length", m=m, g_n=g, k=k,
                      key="static_deflection", key_result=True,
                      description="Static deflection (mean over the mounts)")
@@ -88,7 +100,7 @@ def operating_point(s: Sheet, p: Mapping[str, Any], given: frozenset[str]) -> Is
                                   f" {amplification_text(t)}" if amplifies else
                                   "Isolation efficiency"))
     transmission_level(s, t, key="isolation_db")
-    return Isolator(f=f, k=k, k_m=km, f_n=fn, delta_st=dst, r=r, T=t, eta=eta)
+    return Isolator(f=f, k=k, k_m=km, f_n=fn, delta_st=dst, r=r, T=t, eta=eta, k_dyn=kd)
 
 
 def _stiffness(s: Sheet, p: Mapping[str, Any], given: frozenset[str], m: float, n: int,
@@ -109,6 +121,12 @@ def _stiffness(s: Sheet, p: Mapping[str, Any], given: frozenset[str], m: float, 
                            delta_st=p["static_deflection"], key="stiffness",
                            description="Total vertical stiffness from the stated static"
                                        " deflection")
+        elif shows_ratio(p):
+            k = s.equation("k", "m*(2*pi*f_n)**2/kappa_d", "stiffness", m=m,
+                           f_n=p["natural_frequency"], kappa_d=p["dynamic_stiffness_ratio"],
+                           key="stiffness",
+                           description="Total vertical static stiffness from the stated"
+                                       " natural frequency (a dynamic value)")
         else:
             k = s.equation("k", "m*(2*pi*f_n)**2", "stiffness", m=m,
                            f_n=p["natural_frequency"], key="stiffness",
@@ -144,6 +162,17 @@ def mount_loads(s: Sheet, p: Mapping[str, Any], loads: tuple[float, ...], iso: I
     dmax = s.equation("delta_max", "P_max/k_m", "length", P_max=pmax, k_m=km,
                       key="largest_static_deflection",
                       description="Static deflection of the most heavily loaded mount")
+    if shows_ratio(p):  # elastomer: f_n = √(κ_d·g/δ_st)/2π (the dynamic stiffness)
+        kap = {"kappa_d": p["dynamic_stiffness_ratio"]}
+        fn_lo = s.equation("f_n_min", "sqrt(kappa_d*g_n/delta_max)/(2*pi)", "frequency",
+                           g_n=g, delta_max=dmax, key="mount_natural_frequency_min",
+                           description="Natural frequency from the largest mount"
+                                       " deflection (dynamic stiffness)", **kap)
+        fn_hi = s.equation("f_n_max", "sqrt(kappa_d*g_n*k_m/P_min)/(2*pi)", "frequency",
+                           g_n=g, k_m=km, P_min=pmin, key="mount_natural_frequency_max",
+                           description="Natural frequency from the least loaded mount's"
+                                       " deflection (dynamic stiffness)", **kap)
+        return Loads(P_max=pmax, P_min=pmin, delta_max=dmax, f_n_min=fn_lo, f_n_max=fn_hi)
     fn_lo = s.equation("f_n_min", frequency_from_deflection_formula("delta_max"), "frequency",
                        g_n=g, delta_max=dmax, key="mount_natural_frequency_min",
                        description="Natural frequency from the largest mount"
@@ -191,9 +220,16 @@ def target(s: Sheet, p: Mapping[str, Any], eta_min: float, f: float) -> Target:
                     key="undamped_required_frequency_ratio",
                     description="Undamped handbook form: T = 1/(r² − 1) gives"
                                 " r² = 1 + 1/T (ζ = 0 only)")
-    s.equation("delta_0", "g_n*(r_0/(2*pi*f))**2", "length", g_n=g, r_0=r0, f=f,
-               key="undamped_required_static_deflection",
-               description="Required static deflection by the undamped handbook form")
+    kap = p["dynamic_stiffness_ratio"] if shows_ratio(p) else None
+    if kap is None:
+        s.equation("delta_0", "g_n*(r_0/(2*pi*f))**2", "length", g_n=g, r_0=r0, f=f,
+                   key="undamped_required_static_deflection",
+                   description="Required static deflection by the undamped handbook form")
+    else:
+        s.equation("delta_0", "kappa_d*g_n*(r_0/(2*pi*f))**2", "length", g_n=g, r_0=r0, f=f,
+                   kappa_d=kap, key="undamped_required_static_deflection",
+                   description="Required static deflection by the undamped handbook form"
+                               " (elastomer: f_n = √(κ_d·g/δ_st)/2π)")
     r_req = required_ratio(t_req, zeta)
     s.add(Paragraph(text=text.root(zeta, r_req)))
     s.result("required_frequency_ratio", r_req, "dimensionless", "r_req",
@@ -203,16 +239,39 @@ def target(s: Sheet, p: Mapping[str, Any], eta_min: float, f: float) -> Target:
     fn_req = s.equation("f_n_req", "f/r_req", "frequency", f=f, r_req=r_req,
                         key="required_natural_frequency", key_result=True,
                         description="Highest natural frequency that meets the target")
-    d_req = s.equation("delta_req", "g_n/(2*pi*f_n_req)**2", "length", g_n=g,
-                       f_n_req=fn_req, key="required_static_deflection", key_result=True,
-                       description="Smallest mean static deflection that meets the target")
-    km_req = s.equation("k_m_req", "m*(2*pi*f_n_req)**2/n", "stiffness", m=m,
-                        f_n_req=fn_req, n=n, key="required_stiffness_per_mount",
-                        key_result=True,
-                        description="Largest stiffness of each mount (n equal mounts)")
+    if kap is None:
+        d_req = s.equation("delta_req", "g_n/(2*pi*f_n_req)**2", "length", g_n=g,
+                           f_n_req=fn_req, key="required_static_deflection", key_result=True,
+                           description="Smallest mean static deflection that meets the"
+                                       " target")
+        km_req = s.equation("k_m_req", "m*(2*pi*f_n_req)**2/n", "stiffness", m=m,
+                            f_n_req=fn_req, n=n, key="required_stiffness_per_mount",
+                            key_result=True,
+                            description="Largest stiffness of each mount (n equal mounts)")
+    else:
+        d_req = s.equation("delta_req", "kappa_d*g_n/(2*pi*f_n_req)**2", "length", g_n=g,
+                           f_n_req=fn_req, kappa_d=kap, key="required_static_deflection",
+                           key_result=True, description="Smallest mean static deflection"
+                           " that meets the target (static stiffness)")
+        kd_req = s.equation("k_dyn_m_req", "m*(2*pi*f_n_req)**2/n", "stiffness", m=m,
+                            f_n_req=fn_req, n=n, key="required_dynamic_stiffness_per_mount",
+                            description="Largest dynamic stiffness of each mount (n equal"
+                                        " mounts)")
+        km_req = s.equation("k_m_req", "k_dyn_m_req/kappa_d", "stiffness",
+                            k_dyn_m_req=kd_req, kappa_d=kap,
+                            key="required_stiffness_per_mount", key_result=True,
+                            description="Largest static stiffness of each mount (the"
+                                        " maker's rate): required dynamic stiffness / κ_d")
     s.result("required_stiffness", km_req * n, "stiffness", "k_req",
              "Largest total vertical stiffness that meets the target")
     return Target(T_req=t_req, r_req=r_req, f_n_req=fn_req, delta_req=d_req, k_m_req=km_req)
+
+
+def shows_ratio(p: Mapping[str, Any]) -> bool:
+    """The dynamic stiffness is written out for elastomers and for any stated ratio ≠ 1;
+    steel springs at ratio 1 print as they always have."""
+    return (p.get("mount_type") == "elastomer"
+            or (p.get("dynamic_stiffness_ratio") or 1.0) != 1.0)
 
 
 def peak(s: Sheet, zeta: float) -> float:

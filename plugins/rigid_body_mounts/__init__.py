@@ -6,6 +6,7 @@ mounts pass on under a harmonic excitation, and the choice of springs from a cat
 
 from __future__ import annotations
 
+from reportgen_plugins.mechanics import mount_type_inputs, mount_type_problems
 from reportgen_plugins.mechanics.catalogue import CatalogueError
 
 from reportgen import (
@@ -16,6 +17,7 @@ from reportgen import (
     Caution,
     Column,
     InputSpec,
+    Note,
     Paragraph,
     Sheet,
     Source,
@@ -101,6 +103,7 @@ class RigidBodyMounts(CalcType):
                              kind="text", required=False),
                       Column(name="rated_load", description="Rated load of the isolator",
                              dimension=_F, required=False, positive=True, maximum=1e9))),
+        *mount_type_inputs(),
         InputSpec(name="damping_ratio", symbol="zeta", description="Damping ratio of each"
                   " mount (structural damping, k·(1 + 2iζ))", default=DEFAULT_DAMPING_RATIO,
                   minimum=0.0, maximum=0.5, default_note="assumed; state the isolator's value"),
@@ -167,6 +170,7 @@ class RigidBodyMounts(CalcType):
         elif inertia and box:
             problems.append(("inputs.box_length", "give the moments of inertia or the box"
                              " for an estimate, not both"))
+        problems += mount_type_problems(inputs, given)
         if ({"force_amplitude", "unbalance"} & given) and "running_speed" not in given:
             problems.append(("inputs.running_speed", "an excitation needs the running speed"
                              " (for example \"1180 rpm\")"))
@@ -196,6 +200,9 @@ class RigidBodyMounts(CalcType):
                   **{f"lambda_{i}": "angular_frequency_squared" for i in range(1, 7)})
         s.add(Assumptions(items=text.assumptions(ctx.given, a.model.body.inertia_estimated)),
               Paragraph(title="Method", text=text.METHOD))
+        if p.get("mount_type") == "elastomer" or a.stiffness_ratio != 1.0:
+            s.add(Note(text=text.ratio_note(p.get("mount_type", "steel_spring"),
+                                            a.stiffness_ratio)))
         working.body(s, p, a)
         working.matrices(s, a, units)
         working.modes(s, a)

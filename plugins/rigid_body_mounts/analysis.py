@@ -5,7 +5,7 @@ excitations read from the inputs, one analysis, and the values results.json carr
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -130,8 +130,8 @@ class Analysis:
     unknown, so adding their peaks is the bound that holds for any phase (common practice).
     """
 
-    model: RigidBodyModel
-    modes: Modes
+    model: RigidBodyModel  # the mounts at their static rates: statics, loads, the table
+    modes: Modes  # of ``vibrating``
     static: StaticResult
     damping_ratio: float
     running_speed: float | None
@@ -139,16 +139,30 @@ class Analysis:
     responses: tuple[ForcedResponse, ...]
     transmitted_force: np.ndarray | None
     total_transmitted_force: float | None
+    #: the mounts at their dynamic stiffness (elastomers: κ_d × the static rates), which the
+    #: modes and the response use; None when it is the static model (κ_d = 1)
+    dynamic: RigidBodyModel | None = None
+    stiffness_ratio: float = 1.0
+
+    @property
+    def vibrating(self) -> RigidBodyModel:
+        return self.model if self.dynamic is None else self.dynamic
 
 
 def analyse(body: Body, mounts: Sequence[Mount], *,
             damping_ratio: float = DEFAULT_DAMPING_RATIO,
             excitations: Sequence[Excitation] = (), running_speed: float | None = None,
-            gravity: float = STANDARD_GRAVITY) -> Analysis:
+            gravity: float = STANDARD_GRAVITY, stiffness_ratio: float = 1.0) -> Analysis:
     """Assemble, find the modes and the static equilibrium, and, with excitations, the
-    response at ``running_speed`` (Hz). Raises :class:`MountingError` for impossible input."""
+    response at ``running_speed`` (Hz). ``mounts`` carry their static rates; the modes and
+    the response use ``stiffness_ratio`` (k_dyn/k_st) times them. Raises
+    :class:`MountingError` for impossible input."""
     model = assemble(body, mounts)
-    modes = natural_modes(model)
+    r = stiffness_ratio
+    dynamic = None if r == 1.0 else assemble(body, [
+        replace(m, k_x=m.k_x * r, k_y=m.k_y * r, k_z=m.k_z * r) for m in mounts])
+    vibrating = model if dynamic is None else dynamic
+    modes = natural_modes(vibrating)
     static = static_equilibrium(model, gravity)
     excitations = tuple(excitations)
     responses: tuple[ForcedResponse, ...] = ()
@@ -156,22 +170,24 @@ def analyse(body: Body, mounts: Sequence[Mount], *,
     if excitations:
         if running_speed is None or not running_speed > 0.0:
             raise MountingError("an excitation needs the running speed", field="running_speed")
-        responses = tuple(forced_response(model, modes, e, running_speed, damping_ratio)
+        responses = tuple(forced_response(vibrating, modes, e, running_speed, damping_ratio)
                           for e in excitations)
         per_mount = np.sum([r.mount_peaks[0] for r in responses], axis=0)
         total = float(sum(r.total_peak[0] for r in responses))
     return Analysis(model=model, modes=modes, static=static, damping_ratio=damping_ratio,
                     running_speed=running_speed, excitations=excitations,
                     responses=responses, transmitted_force=per_mount,
-                    total_transmitted_force=total)
+                    total_transmitted_force=total, dynamic=dynamic, stiffness_ratio=r)
 
 
 def analyse_inputs(inputs: Mapping[str, object]) -> Analysis:
-    """:func:`analyse` from the calc's SI inputs (``mounts`` a list of row mappings)."""
+    """:func:`analyse` from the calc's SI inputs (``mounts`` a list of row mappings, at
+    their static rates; ``dynamic_stiffness_ratio`` scales them for the dynamics)."""
     damping = inputs.get("damping_ratio")
     speed = inputs.get("running_speed")
     return analyse(body_from_inputs(inputs),
                    mounts_from_rows(inputs["mounts"]),
+                   stiffness_ratio=float(inputs.get("dynamic_stiffness_ratio") or 1.0),
                    damping_ratio=DEFAULT_DAMPING_RATIO if damping is None else _num(damping),
                    excitations=excitations_from_inputs(inputs),
                    running_speed=None if speed is None else _num(speed))

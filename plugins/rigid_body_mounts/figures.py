@@ -93,7 +93,7 @@ def modes(a: Analysis, display: str) -> Figure:
     mounts = np.array([[m.x, m.y, m.z] for m in a.model.mounts])
     size = float(np.ptp(box, axis=0).max())
     panels = []
-    for mv in mode_views(a.model, a.modes):
+    for mv in mode_views(a.vibrating, a.modes):
         phi = np.asarray(a.modes.shapes[:, mv.mode - 1])
         span = max(float(np.abs(_motion(phi, box, cg)).max()), 1e-30)
         gain = 0.12 * size / span  # the point that moves most moves 12 % of the size
@@ -140,7 +140,7 @@ def frequencies(a: Analysis, p: Mapping[str, Any], crit: Mapping[str, Any],
                                 label=f"above f_run/{format_number(chart.min_ratio, 4)}"),))]
     if a.excitations:
         grid = np.linspace(top / 200.0, top, 800)
-        total = sum(forced_response(a.model, a.modes, e, grid, a.damping_ratio).total_peak
+        total = sum(forced_response(a.vibrating, a.modes, e, grid, a.damping_ratio).total_peak
                     for e in a.excitations)
         fs, fu = _scale("force", display)
         y = np.asarray(total) * fs

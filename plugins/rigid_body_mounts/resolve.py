@@ -62,13 +62,16 @@ def catalogue_of(inputs: Mapping[str, Any]) -> Catalogue | None:
 
 def required_deflection(inputs: Mapping[str, Any], criteria: Mapping[str, Any]) -> float | None:
     """The static deflection a selected spring must reach: the one whose mass-spring
-    frequency is the isolation limit running_speed/min_frequency_ratio, or the stated
+    frequency (dynamic stiffness) is the isolation limit running_speed/min_frequency_ratio,
+    or the stated
     ``min_static_deflection`` if that is more; None without either."""
     need = []
     speed = inputs.get("running_speed")
     if speed:
-        need.append(required_static_deflection(
-            speed / criteria.get("min_frequency_ratio", SQRT2)))
+        # an elastomer's f_n = √(κ_d·g/δ_st)/2π: it needs κ_d times the deflection
+        need.append(float(inputs.get("dynamic_stiffness_ratio") or 1.0)
+                    * required_static_deflection(
+                        speed / criteria.get("min_frequency_ratio", SQRT2)))
     if criteria.get("min_static_deflection"):
         need.append(float(criteria["min_static_deflection"]))
     return max(need) if need else None

@@ -136,3 +136,14 @@ CAUTIONS = (
     " mounts' damping or restraints limit the motion there, and that flexible connections"
     " (ducts, pipes, cables) allow the motion computed here.",
 )
+
+
+def ratio_note(mount_type: str, ratio: float) -> str:
+    """What the dynamic-to-static stiffness ratio changes here."""
+    steel = (" A ratio other than 1 is stated for steel springs, whose dynamic and static"
+             " stiffness are normally equal; it is used as stated." if mount_type != "elastomer"
+             else "")
+    return (f"The mounts' dynamic stiffness is κ_d = {format_number(ratio, 3)} times the rates"
+            f" in the mounts table, which are static (the maker's).{steel} The static loads,"
+            " deflections and tilts use the static rates; the stiffness matrix K, the six"
+            " modes and the forces passed to the structure use the dynamic stiffness.")

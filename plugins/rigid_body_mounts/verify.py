@@ -324,11 +324,23 @@ class Independent:
         return out
 
 
+def _dynamic(inputs: Mapping[str, object]) -> dict[str, object]:
+    """The inputs with every mount rate times dynamic_stiffness_ratio (k_dyn/k_st)."""
+    ratio = float(inputs.get("dynamic_stiffness_ratio") or 1.0)  # type: ignore[arg-type]
+    keys = ("k_vertical", "k_horizontal", "k_x", "k_y", "k_z")
+    out = dict(inputs)
+    out["mounts"] = tuple({k: (float(v) * ratio if k in keys and v is not None else v)
+                           for k, v in row.items()} for row in inputs["mounts"])
+    return out
+
+
 def independent_results(inputs: Mapping[str, object],
                         gravity: float = G_N) -> Independent:
     """All the second route's numbers from the calc's SI inputs (``mounts`` as row
     mappings with x, y, z and k_x/k_y/k_z or k_vertical/k_horizontal, optional axes)."""
-    m, k = system_matrices(inputs)
+    # the modes and the response see the dynamic stiffness; the statics the static rates
+    vibrating = _dynamic(inputs)
+    m, k = system_matrices(vibrating)
     cg = np.array([float(inputs.get(f"cg_{a}") or 0.0) for a in "xyz"])
     springs = _springs(inputs, cg)
     freqs = pencil_frequencies(m, k)
@@ -342,7 +354,7 @@ def independent_results(inputs: Mapping[str, object],
              if inputs.get(key) is not None]
     per_mount = total = None
     if kinds:
-        parts = [_transmitted(inputs, kind) for kind in kinds]
+        parts = [_transmitted(vibrating, kind) for kind in kinds]
         per_mount = np.sum([p[0] for p in parts], axis=0)
         total = float(sum(p[1] for p in parts))
     return Independent(frequencies=freqs, dominant_shares=tuple(_dominant_shares(m, k, freqs)),

@@ -45,7 +45,7 @@ def _dimensions(block: tuple[str, str, str]) -> tuple[tuple[str, ...], ...]:
 
 def matrices(s: Sheet, a: Analysis, units: str) -> None:
     s.add(Paragraph(title="Mass and stiffness matrices", text=text.MATRICES))
-    m, k = a.model.mass_matrix, a.model.stiffness_matrix
+    m, k = a.model.mass_matrix, a.vibrating.stiffness_matrix
     s.add(Matrix(title="Mass matrix about the centre of gravity", symbol="M",
                  values=tuple(tuple(float(v) for v in row) for row in m),
                  row_labels=LABELS, column_labels=LABELS,
@@ -58,8 +58,13 @@ def matrices(s: Sheet, a: Analysis, units: str) -> None:
                          " rotations in N·m/rad; K = Σ T_iᵀ·K_i·T_i over the mounts."))
     kz = [float(r) for r in a.model.mount_stiffness[:, 2, 2]]
     names = {f"k_z{i}": v for i, v in enumerate(kz, start=1)}
-    total = s.equation("K_z", " + ".join(names), "stiffness", **names,
-                       description="Total vertical stiffness of the mounts")
+    if a.dynamic is None:
+        total = s.equation("K_z", " + ".join(names), "stiffness", **names,
+                           description="Total vertical stiffness of the mounts")
+    else:  # the mounts' static rates times κ_d = k_dyn/k_st
+        total = s.equation("K_z", f"kappa_d*({' + '.join(names)})", "stiffness", **names,
+                           kappa_d=a.stiffness_ratio, description="Total vertical dynamic stiffness"
+                           " of the mounts: κ_d times their static rates")
     s.equation("f_z0", "sqrt(K_z/m)/(2*pi)", "frequency", K_z=total, m=a.model.body.mass,
                key="uncoupled_vertical_frequency",
                description="Vertical frequency as if the vertical mode were uncoupled (a"

@@ -1180,6 +1180,10 @@ def _texts_value(raw: Any, spec: InputSpec) -> tuple[str, ...]:
     return tuple(raw)
 
 
+#: the choices of a yes/no switch, which the job may also write as true or false
+YES_NO = ("yes", "no")
+
+
 def _criterion_example(spec: InputSpec, library: CriteriaLibrary) -> str:
     names = library.names()
     return str(spec.default) if isinstance(spec.default, str) else (names[0] if names
@@ -1187,6 +1191,8 @@ def _criterion_example(spec: InputSpec, library: CriteriaLibrary) -> str:
 
 
 def _text_value(raw: Any, spec: InputSpec) -> str:
+    if isinstance(raw, bool) and spec.kind == "choice" and spec.choices == YES_NO:
+        raw = "yes" if raw else "no"  # a yes/no choice may be written as a TOML boolean
     if not isinstance(raw, str):
         raise UnitProblem(f"expected text, found {type(raw).__name__} {_short(raw)}"
                           + (f"; one of {', '.join(spec.choices)}" if spec.choices else ""))

@@ -299,7 +299,9 @@ def _criterion_name(spec: InputSpec) -> dict[str, Any]:
 def _value_schema(spec: InputSpec) -> dict[str, Any]:
     dim = DIMENSIONS[spec.dimension]
     if spec.kind == "choice":
-        choice: dict[str, Any] = {"enum": list(spec.choices), "description": spec.description}
+        choice: dict[str, Any] = {"enum": list(spec.choices) + (
+            [True, False] if spec.choices == ("yes", "no") else []),  # TOML booleans too
+            "description": spec.description}
         if spec.default is not None:
             choice["default"] = spec.default
         return choice

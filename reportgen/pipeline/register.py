@@ -20,10 +20,28 @@ def register_rows(built: Iterable[dict[str, Any]]) -> list[dict[str, Any]]:
     return sorted(rows, key=lambda r: (r["calc_number"], r["revision"]))
 
 
+def superseded(rows: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """``rows`` with ``superseded_by``: for each calc number, every revision but the newest
+    names the revision that follows it (newest by date, then by revision mark: B after A,
+    AA after Z); the newest has None."""
+    def order(r: dict[str, Any]) -> tuple[str, int, str]:
+        rev = str(r.get("revision") or "")
+        return (str(r.get("date") or ""), len(rev), rev)
+
+    after: dict[int, str] = {}
+    numbers = {r["calc_number"] for r in rows}
+    for number in numbers:
+        same = sorted((r for r in rows if r["calc_number"] == number), key=order)
+        for older, newer in zip(same, same[1:], strict=False):
+            after[id(older)] = newer["revision"]
+    return [r | {"superseded_by": after.get(id(r))} for r in rows]
+
+
 def register_files(out_dir: Path, rows: list[dict[str, Any]]) -> list[tuple[Path, bytes]]:
     """A register of ``rows`` (see register_rows): (path, bytes) of its JSON and its PDF."""
     from reportgen.render.register import register_pdf
 
+    rows = superseded(rows)
     data = {"format": REGISTER_FORMAT, "packages": rows}
     return [(out_dir / REGISTER_JSON,
              (json.dumps(data, indent=2, ensure_ascii=False) + "\n").encode("utf-8")),
