@@ -19,8 +19,8 @@ def assumptions(given: frozenset[str], uneven: bool) -> tuple[str, ...]:
         " mass, vertically; rocking and horizontal modes are not analysed.",
         "Linear isolators with linear viscous damping; all mounts of one type (equal"
         " stiffness and damping ratio).",
-        "Harmonic excitation at the running speed; the dominant excitation is at the"
-        " rotational frequency (1 × rpm).",
+        "Harmonic excitation at 1 × running speed in the working shown; orders the job"
+        " lists are judged over the envelope.",
         "Force transmissibility (machine force to floor) and motion transmissibility"
         " (floor motion to machine) are the same function for this model.",
     ]
