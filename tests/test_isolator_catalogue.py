@@ -345,3 +345,15 @@ def test_rooftop_air_handler_heavy_corner_needs_a_bigger_spring():
     assert abs(final.tilt_x) < 5e-4 and abs(final.tilt_y) < 5e-4
     # and the springs isolate a 1150 rpm fan: every frequency below 19.17 Hz / √2
     assert natural_modes(model([p.row for p in picks])).frequencies.max() < 1150 / 60 / 2**0.5
+
+
+def test_a_reason_is_written_in_the_package_s_units():
+    # A US package never prints SI units the job did not give (issue 16): the selection's
+    # reason names loads in lbf and deflections in inches (1 lbf = 4.448 N, 1 in = 25.4 mm:
+    # NIST SP 811, App. B).
+    cat = shipped("tollbrook-ts.csv")
+    us = select(cat, 3000 * LBF, units="US")
+    assert "3000 lbf" in us.reason and "kN" not in us.reason
+    deep = select(cat, 1000 * LBF, 1.7 * INCH, units="US")
+    assert " in" in deep.reason and "mm" not in deep.reason
+    assert "mm" in select(cat, 1000 * LBF, 1.7 * INCH).reason  # SI by default

@@ -198,11 +198,11 @@ class ForcedResponse(CalcType):
         band = (v.f_n * (1 - min_margin), v.f_n * (1 + min_margin))
         s.add(Paragraph(title="Regime", text=text.regime(kind, v.r, v.zeta, v.phi, k,
                                                          v.c * v.omega, m * v.omega**2,
-                                                         ctx.units)),
+                                                         ctx.display)),
               Paragraph(text=text.velocity_and_margin(v.margin_f, min_margin, band)))
-        checks.write(s, kind, crit, v, band, ctx.units)
+        checks.write(s, kind, crit, v, band, ctx.display)
         if passes:
-            working.passage(s, kind, p, given, crit, v, ctx.units)
+            working.passage(s, kind, p, given, crit, v, ctx.display)
         checks.support(s, p, v)
         if v.margin < min_margin:
             s.add(Caution(text=text.band_caution(v.margin, min_margin, v.D)))

@@ -197,7 +197,7 @@ class Isolation(CalcType):
         return problems
 
     def compute(self, ctx: CalcContext) -> CalcOutput:
-        p, crit, units = ctx.inputs, ctx.criteria, ctx.units
+        p, crit, units = ctx.inputs, ctx.criteria, ctx.display  # text in the package's units
         uneven = "mount_positions" in ctx.given
         s = Sheet(self.inputs)
         s.add(Assumptions(items=text.assumptions(ctx.given, uneven)),

@@ -50,7 +50,7 @@ def write(s: Sheet, p: Mapping[str, Any], loads: Sequence[float], delta_req: flo
     if f is None:
         return
     cat = read_catalogue(f.name, f.read_bytes())
-    picks = select_for_loads(cat, loads, delta_req)
+    picks = select_for_loads(cat, loads, delta_req, units=units)
     springs = tuple(MountSpring(number=i, how="selected", model=sel.row, selection=sel,
                                 load=load, deflection=(load / sel.row.spring_rate
                                                        if sel.row is not None else 0.0))

@@ -11,6 +11,7 @@ from dataclasses import dataclass
 from reportgen.units import STANDARD_GRAVITY
 
 from .catalogue import Catalogue, CatalogueRow
+from .display import quantity_text
 
 __all__ = [
     "CONSISTENCY_TOLERANCE",
@@ -113,17 +114,17 @@ class Selection:
     rejected: tuple[tuple[str, str], ...]
 
 
-def _mm(x: float) -> str:
-    return f"{x * 1000:.1f} mm"
+def _mm(x: float, units: str) -> str:
+    return quantity_text(x, "length", units, 3)
 
 
-def _kn(x: float) -> str:
-    return f"{x / 1000:.3g} kN"
+def _kn(x: float, units: str) -> str:
+    return quantity_text(x, "force", units, 3)
 
 
 def select(catalogue: Catalogue, static_load: float, required_deflection: float | None = None,
-           *, travel_allowance: float = TRAVEL_ALLOWANCE, min_utilisation: float = 0.0
-           ) -> Selection:
+           *, travel_allowance: float = TRAVEL_ALLOWANCE, min_utilisation: float = 0.0,
+           units: str = "SI") -> Selection:
     """The lightest adequate model for a mount's static load (N).
 
     Adequate: it is rated for the load (min_utilisation ≤ P/P_rated ≤ 1), its operating
@@ -137,7 +138,8 @@ def select(catalogue: Catalogue, static_load: float, required_deflection: float 
         return Selection(static_load=static_load, required_deflection=required_deflection,
                          row=None, operating_deflection=None, utilisation=None, travel=None,
                          code="tension", rejected=(),
-                         reason=f"the mount carries no compressive load ({_kn(static_load)}):"
+                         reason="the mount carries no compressive load"
+                                f" ({_kn(static_load, units)}):"
                                 " no spring can be chosen")
     codes = set()
     for order, row in enumerate(catalogue.rows):
@@ -146,19 +148,20 @@ def select(catalogue: Catalogue, static_load: float, required_deflection: float 
         travel = travel_check(row, defl, travel_allowance)
         if use > 1.0:
             codes.add("overload")
-            rejected.append((row.model, f"rated {_kn(row.rated_load)}, below the load"))
+            rejected.append((row.model,
+                             f"rated {_kn(row.rated_load, units)}, below the load"))
         elif use < min_utilisation:
             codes.add("underload")
             rejected.append((row.model, f"loaded to {use:.0%} of its rating, below"
                                         f" {min_utilisation:.0%}"))
         elif required_deflection is not None and defl < required_deflection:
             codes.add("deflection")
-            rejected.append((row.model, f"deflects {_mm(defl)}, less than"
-                                        f" {_mm(required_deflection)}"))
+            rejected.append((row.model, f"deflects {_mm(defl, units)}, less than"
+                                        f" {_mm(required_deflection, units)}"))
         elif not travel.passes:
             codes.add("travel")
-            rejected.append((row.model, f"{_mm(travel.remaining)} travel left to solid,"
-                                        f" less than {_mm(travel.required)}"))
+            rejected.append((row.model, f"{_mm(travel.remaining, units)} travel left to"
+                                        f" solid, less than {_mm(travel.required, units)}"))
         else:
             fits.append((row.rated_load, row.spring_rate, order, row, use, travel))
     if fits:
@@ -169,27 +172,28 @@ def select(catalogue: Catalogue, static_load: float, required_deflection: float 
         return Selection(static_load=static_load, required_deflection=required_deflection,
                          row=row, operating_deflection=travel.operating_deflection,
                          utilisation=use, travel=travel, code="ok",
-                         reason=f"the lightest model rated for {_kn(static_load)}"
+                         reason=f"the lightest model rated for {_kn(static_load, units)}"
                                 + ("" if required_deflection is None else
-                                   f" that deflects at least {_mm(required_deflection)}"),
+                                   f" that deflects at least {_mm(required_deflection, units)}"),
                          rejected=tuple(rejected))
     biggest = max(catalogue.rows, key=lambda r: r.rated_load)
     if codes == {"overload"}:
         code = "overload"
-        reason = (f"no model is rated for {_kn(static_load)} (the largest, {biggest.model},"
-                  f" is rated {_kn(biggest.rated_load)})")
+        reason = (f"no model is rated for {_kn(static_load, units)} (the largest,"
+                  f" {biggest.model}, is rated {_kn(biggest.rated_load, units)})")
     elif "deflection" in codes:
         code = "deflection"
         most = max((static_load / r.spring_rate for r in catalogue.rows
                     if static_load <= r.rated_load), default=0.0)
-        reason = (f"the models rated for {_kn(static_load)} deflect at most {_mm(most)},"
-                  f" {_mm(required_deflection or 0.0)} needed")
+        reason = (f"the models rated for {_kn(static_load, units)} deflect at most"
+                  f" {_mm(most, units)}, {_mm(required_deflection or 0.0, units)} needed")
     elif "travel" in codes:
         code = "travel"
         reason = "the models rated for the load would leave too little travel to solid"
     else:
         code = "underload"
-        reason = f"every model rated for {_kn(static_load)} would be loaded too lightly"
+        reason = (f"every model rated for {_kn(static_load, units)} would be loaded too"
+                  " lightly")
     return Selection(static_load=static_load, required_deflection=required_deflection,
                      row=None, operating_deflection=None, utilisation=None, travel=None,
                      code=code, reason=reason, rejected=tuple(rejected))

@@ -186,8 +186,8 @@ class RigidBodyMounts(CalcType):
         return problems
 
     def compute(self, ctx: CalcContext) -> CalcOutput:
-        p, crit, units = ctx.inputs, ctx.criteria, ctx.units
-        done = resolve(p, crit)
+        p, crit, units = ctx.inputs, ctx.criteria, ctx.display  # text in the package's units
+        done = resolve(p, crit, units)
         a = analyse_inputs(_with_points(analysed_inputs(p, done.rows)))
         s = Sheet(self.inputs + self.criteria)
         n_mounts = len(done.rows)

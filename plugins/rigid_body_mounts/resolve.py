@@ -103,7 +103,8 @@ def _nearest(catalogue: Catalogue, sel: Selection) -> CatalogueRow:
     return max(rows, key=lambda r: r.rated_load)
 
 
-def resolve(inputs: Mapping[str, Any], criteria: Mapping[str, Any]) -> Resolved:
+def resolve(inputs: Mapping[str, Any], criteria: Mapping[str, Any],
+            units: str = "SI") -> Resolved:
     """Complete every mount row. Raises MountingError (field "mounts", with the row) for a
     row that cannot be completed and CatalogueError for a bad catalogue file."""
     catalogue = catalogue_of(inputs)
@@ -139,13 +140,14 @@ def resolve(inputs: Mapping[str, Any], criteria: Mapping[str, Any]) -> Resolved:
     if auto:
         assert catalogue is not None
         weight_share = float(inputs["mass"]) * STANDARD_GRAVITY / len(rows)
-        chosen = {i: _pick(catalogue, select(catalogue, weight_share, need)) for i in auto}
+        chosen = {i: _pick(catalogue, select(catalogue, weight_share, need, units=units))
+                  for i in auto}
         body = body_from_inputs(inputs)
         for rounds in range(1, MAX_ROUNDS + 1):  # noqa: B007 (rounds is reported)
             trial = [(_with_model(r, chosen[i]) if i in chosen else r)
                      for i, r in enumerate(rows)]
             loads = static_equilibrium(assemble(body, mounts_from_rows(trial))).loads
-            picks = {i: select(catalogue, float(loads[i]), need) for i in auto}
+            picks = {i: select(catalogue, float(loads[i]), need, units=units) for i in auto}
             again = {i: _pick(catalogue, picks[i]) for i in auto}
             if again == chosen:
                 break
