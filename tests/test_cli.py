@@ -120,6 +120,9 @@ def test_demo_end_to_end(tmp_path):
             assert calc["id"] in text
         statuses.append(data["package"]["status"])
     assert proc.returncode == (1 if "fail" in statuses else 0)
+    from test_layout import lone_pages  # every demo page carries a body (issue 15)
+
+    assert not [p for pdf in packages for p in lone_pages(pdf)]
     pump = json.loads((out / "QEP-2417-V-101-B.results.json").read_text())
     fn = pump["calcs"][0]["results"]["natural_frequency"]["value"]
     assert fn == pytest.approx(math.sqrt(350e3 / 1200) / (2 * math.pi), rel=1e-12)
