@@ -644,6 +644,26 @@ def test_steady_limit_applied_to_passage_makes_a_check():
     assert c.status == "info" and "max_displacement" in c.note
 
 
+def test_steady_force_limit_applied_to_passage_makes_a_check():
+    # A dwell at resonance passes F_0·T(r = 1) into the support, T(1) = √(1 + 4ζ²)/(2ζ)
+    # (force transmissibility, Thomson & Dahleh §3.5); for an unbalance the force at
+    # resonance is U·ω_n², so F = k·X_res·√(1 + 4ζ²) with X_res = U/(2ζm) (Rao §3.7).
+    inputs = {"mass": "850 kg", "stiffness": "330 kN/m", "damping_ratio": 0.02,
+              "unbalance": "0.0075 kg*m", "speed": "980 rpm"}
+    x_res = 0.0075 / (2 * 0.02 * 850)
+    f_pass = 330e3 * x_res * math.sqrt(1 + (2 * 0.02) ** 2)
+    wn2 = 330e3 / 850
+    assert f_pass == pytest.approx(0.0075 * wn2 * math.sqrt(1 + 4 * 0.02**2) / (2 * 0.02))
+    for limit, status in (("50 N", "fail"), ("100 N", "pass")):
+        doc = _doc(inputs, {"max_transmitted_force": limit,
+                            "passage_uses_steady_limits": "yes"})
+        checks = {c.id: c for c in _blocks(doc, Check)}
+        c = checks["resonance-passage-force"]
+        assert c.status == status and c.value.value == pytest.approx(f_pass, rel=1e-9)
+        assert "resonance-passage" not in checks  # no displacement limit: one check only
+        assert _results(doc)["passage_force"] == pytest.approx(f_pass, rel=1e-9)
+
+
 def test_suspended_floor_near_the_forcing_is_a_failing_check():
     # 980 rpm = 16.33 Hz; a 30 Hz floor is within a factor 2 of it (factor 2: common
     # practice, no source): floor flexibility is not modelled by m·x'' + c·x' + k·x = F

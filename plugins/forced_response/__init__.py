@@ -127,8 +127,9 @@ class ForcedResponse(CalcType):
                   description="Largest acceptable force amplitude into the support",
                   dimension="force", required=False, positive=True),
         InputSpec(name="passage_uses_steady_limits", symbol="steady",
-                  description="The steady-state displacement limit (max_displacement)"
-                              " applies to the passage through resonance too",
+                  description="The steady-state limits (max_displacement,"
+                              " max_transmitted_force) apply to the passage through"
+                              " resonance too",
                   kind="choice", choices=("yes", "no"), required=False),
     )
     sources = (THOMSON, RAO)

@@ -222,6 +222,7 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
     how = ("Steady-state amplitude of a dwell at resonance (no run-up time stated: the"
            " slowest passage).")
     value = x_res
+    r_peak = 1.0  # the frequency ratio where the passage peaks (a dwell: at resonance)
     if "run_up_time" in given and kind in ("force", "unbalance"):
         f_end = v.f
         rng = p.get("speed_range")
@@ -237,6 +238,7 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
                              run.displacement_ratio * f_static / p["stiffness"], "length",
                              "X_pass", "Largest displacement while passing through resonance"
                              " (transient run-up, integrated)")
+            r_peak = run.peak_frequency / v.f_n
             how = (f"Transient of a run-up from rest at constant acceleration"
                    f" ({format_number(f_end / t_ramp, 3)} Hz/s, from the stated run-up time),"
                    f" integrated in time; the largest displacement occurs at"
@@ -245,6 +247,11 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
         else:
             how = ("Run-up too long to integrate within the cost bound: " + how)
     steady = crit.get("passage_uses_steady_limits") == "yes"
+    judged = False
+    if steady and "max_transmitted_force" in crit and kind in ("force", "unbalance"):
+        passage_force(s, p, v, value, r_peak, crit["max_transmitted_force"],
+                      text.passage_note(lead, how))
+        judged = True
     if "max_passage_displacement" in crit:
         s.check("resonance-passage", "Displacement while passing through resonance within"
                 " the limit", value=value, limit=crit["max_passage_displacement"],
@@ -255,11 +262,32 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
                 comparison="<=", dimension="length",
                 note=text.passage_note(lead, how + " The job applies the steady-state"
                                        " displacement limit to the passage."))
-    else:
+    elif not judged:
         s.check("resonance-passage", "Passage through resonance not assessed",
                 status="info", value=value, dimension="length",
                 note=text.passage_note(lead, how + (
                     " The job applies the steady-state limits to the passage, but gives no"
-                    " steady displacement limit (max_displacement)." if steady else
+                    " steady displacement or force limit (max_displacement,"
+                    " max_transmitted_force)." if steady else
                     " No passage criterion (max_passage_displacement, or"
                     " passage_uses_steady_limits with max_displacement) is given.")))
+
+
+def passage_force(s: Sheet, p: Mapping[str, Any], v: Printed, x_pass: float, r_peak: float,
+                  limit: float, note: str) -> None:
+    """The force into the support while passing resonance, against the steady-state force
+    limit: spring and damper force of the passage amplitude at the frequency ratio where it
+    peaks, F = k·X·√(1 + (2ζr)²) (Rao §3.6, exact for a steady dwell at r = 1; for a run-up
+    the amplitude's own peak taken as harmonic at its frequency, stated in the note)."""
+    x = "X_res" if r_peak == 1.0 else "X_pass"  # a dwell's amplitude, or the run-up's
+    f_pass = s.equation("F_pass", f"k*{x}*sqrt(1 + (2*zeta*r_p)**2)", "force",
+                        k=p["stiffness"], zeta=v.zeta, r_p=r_peak, **{x: x_pass},
+                        dims={"X_pass": "length", "r_p": "dimensionless"},
+                        key="passage_force",
+                        description="Force into the support while passing through"
+                                    " resonance (spring and damper, at the passage peak)")
+    s.check("resonance-passage-force", "Force into the support while passing through"
+            " resonance within the steady-state limit", value=f_pass, limit=limit,
+            comparison="<=", dimension="force",
+            note=note + " The job applies the steady-state force limit to the passage"
+                        " (a run-up's peak taken as harmonic at its own frequency).")
