@@ -73,6 +73,23 @@ def test_a_sine_at_a_band_centre_gives_a_over_root_2(plugins, tmp_path):
     assert section.verification and all(v.agrees for v in section.verification)
 
 
+def test_a_short_record_is_still_verified_by_the_total_over_its_bands(plugins, tmp_path):
+    # A 21 s record of a tone at the 1 Hz / 1.25 Hz band edge: no band holds 32 spectral
+    # lines, so no single band is compared; the total over the bands is, and both routes
+    # give the tone's rms A/√2 (a sine's rms; the adjacent Butterworth bands' |H|² sum to
+    # about 1 at their shared edge, IEC 61260-1 band-edge definition f_m·10^(±1/20)).
+    a, fs = 1e-4, 256.0
+    edge = 1.25 * 10 ** (-1 / 20)
+    t = np.arange(int(21 * fs)) / fs
+    name = _csv(tmp_path / "short.csv", fs, {"z": a * 1e3 * np.sin(2 * np.pi * edge * t)})
+    _, section = _results(compute(_calc({"data_file": name, "averaging_time": "10 s"}),
+                                  plugins, tmp_path))
+    (row,) = section.verification
+    assert row.quantity.startswith("band total") and row.agrees
+    assert row.closed_form == pytest.approx(a / math.sqrt(2), rel=0.03)
+    assert row.independent == pytest.approx(a / math.sqrt(2), rel=0.03)
+
+
 def test_white_noise_gives_the_root_of_density_times_bandwidth(plugins, tmp_path):
     # T2_band_limited_white_noise_band_rms: one-sided velocity PSD S; band rms =
     # √(S·B_noise), B_noise of the 3rd-order

@@ -46,7 +46,7 @@ from .method import (
 )
 from .verify import second_method
 
-__version__ = "0.1.0"
+__version__ = "0.2.0"
 
 THOMSON = Source(key="thomson-ch3", citation=(
     "W.T. Thomson & M.D. Dahleh, Theory of Vibration with Applications, 5th ed.,"

@@ -48,7 +48,7 @@ from .method import (
 )
 from .verify import second_method
 
-__version__ = "0.2.0"
+__version__ = "0.3.0"
 
 THOMSON = Source(key="thomson-3.5", citation=(
     "W.T. Thomson & M.D. Dahleh, Theory of Vibration with Applications, 5th ed., Prentice"

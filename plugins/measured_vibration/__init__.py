@@ -35,7 +35,7 @@ from . import checks, figures, text
 from .assess import assess_ppv
 from .working import analysis_of, criterion_of, field_of, mode_of, second_method
 
-__version__ = "0.1.0"
+__version__ = "0.1.1"
 
 IEC = Source(key="iec-61260-1", citation=(
     "IEC 61260-1:2014, Electroacoustics: octave-band and fractional-octave-band filters,"

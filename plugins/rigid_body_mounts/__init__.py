@@ -32,7 +32,7 @@ from .method import DEFAULT_DAMPING_RATIO, SQRT2, MountingError
 from .resolve import analysed_inputs, resolve
 from .verification import second_method
 
-__version__ = "0.1.0"
+__version__ = "0.2.0"
 
 HARRIS = Source(key="harris-rigid-body", citation=(
     "Harris' Shock and Vibration Handbook (C.M. Harris & A.G. Piersol, eds.), 5th ed.,"
