@@ -662,6 +662,13 @@ def test_steady_force_limit_applied_to_passage_makes_a_check():
         assert c.status == status and c.value.value == pytest.approx(f_pass, rel=1e-9)
         assert "resonance-passage" not in checks  # no displacement limit: one check only
         assert _results(doc)["passage_force"] == pytest.approx(f_pass, rel=1e-9)
+    # a 5 s run-up: the integrated force |k·x + c·x'| peaks below the dwell's (a finite
+    # sweep never builds the full resonant amplitude: physical invariant) and above the
+    # force at the running speed
+    fast = _doc({**inputs, "run_up_time": "5 s"},
+                {"max_transmitted_force": "100 N", "passage_uses_steady_limits": "yes"})
+    running = _results(fast)["transmitted_force"]
+    assert running < _results(fast)["passage_force"] < f_pass
 
 
 def test_suspended_floor_near_the_forcing_is_a_failing_check():

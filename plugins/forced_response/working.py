@@ -222,7 +222,7 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
     how = ("Steady-state amplitude of a dwell at resonance (no run-up time stated: the"
            " slowest passage).")
     value = x_res
-    r_peak = 1.0  # the frequency ratio where the passage peaks (a dwell: at resonance)
+    force_run = None  # the run-up's integrated force into the support, when integrated
     if "run_up_time" in given and kind in ("force", "unbalance"):
         f_end = v.f
         rng = p.get("speed_range")
@@ -238,7 +238,7 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
                              run.displacement_ratio * f_static / p["stiffness"], "length",
                              "X_pass", "Largest displacement while passing through resonance"
                              " (transient run-up, integrated)")
-            r_peak = run.peak_frequency / v.f_n
+            force_run = run.force_ratio * f_static
             how = (f"Transient of a run-up from rest at constant acceleration"
                    f" ({format_number(f_end / t_ramp, 3)} Hz/s, from the stated run-up time),"
                    f" integrated in time; the largest displacement occurs at"
@@ -249,7 +249,7 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
     steady = crit.get("passage_uses_steady_limits") == "yes"
     judged = False
     if steady and "max_transmitted_force" in crit and kind in ("force", "unbalance"):
-        passage_force(s, p, v, value, r_peak, crit["max_transmitted_force"],
+        passage_force(s, p, v, x_res, force_run, crit["max_transmitted_force"],
                       text.passage_note(lead, how))
         judged = True
     if "max_passage_displacement" in crit:
@@ -273,21 +273,22 @@ def passage(s: Sheet, kind: str, p: Mapping[str, Any], given: frozenset[str],
                     " passage_uses_steady_limits with max_displacement) is given.")))
 
 
-def passage_force(s: Sheet, p: Mapping[str, Any], v: Printed, x_pass: float, r_peak: float,
-                  limit: float, note: str) -> None:
+def passage_force(s: Sheet, p: Mapping[str, Any], v: Printed, x_res: float,
+                  force_run: float | None, limit: float, note: str) -> None:
     """The force into the support while passing resonance, against the steady-state force
-    limit: spring and damper force of the passage amplitude at the frequency ratio where it
-    peaks, F = k·X·√(1 + (2ζr)²) (Rao §3.6, exact for a steady dwell at r = 1; for a run-up
-    the amplitude's own peak taken as harmonic at its frequency, stated in the note)."""
-    x = "X_res" if r_peak == 1.0 else "X_pass"  # a dwell's amplitude, or the run-up's
-    f_pass = s.equation("F_pass", f"k*{x}*sqrt(1 + (2*zeta*r_p)**2)", "force",
-                        k=p["stiffness"], zeta=v.zeta, r_p=r_peak, **{x: x_pass},
-                        dims={"X_pass": "length", "r_p": "dimensionless"},
-                        key="passage_force",
-                        description="Force into the support while passing through"
-                                    " resonance (spring and damper, at the passage peak)")
+    limit: for a dwell at resonance the spring and damper force of its amplitude,
+    F = k·X_res·√(1 + (2ζ)²) (Rao §3.6); for a stated run-up the largest |k·x + c·x'| of
+    the integrated transient."""
+    if force_run is None:
+        value = s.equation("F_pass", "k*X_res*sqrt(1 + (2*zeta)**2)", "force",
+                           k=p["stiffness"], X_res=x_res, zeta=v.zeta, key="passage_force",
+                           description="Force into the support for a dwell at resonance"
+                                       " (spring and damper)")
+    else:
+        value = s.result("passage_force", force_run, "force", "F_pass",
+                         "Largest force into the support while passing through resonance"
+                         " (transient run-up, integrated: |k·x + c·x'|)")
     s.check("resonance-passage-force", "Force into the support while passing through"
-            " resonance within the steady-state limit", value=f_pass, limit=limit,
+            " resonance within the steady-state limit", value=value, limit=limit,
             comparison="<=", dimension="force",
-            note=note + " The job applies the steady-state force limit to the passage"
-                        " (a run-up's peak taken as harmonic at its own frequency).")
+            note=note + " The job applies the steady-state force limit to the passage.")
