@@ -83,6 +83,7 @@ class _Evaluator:
     def __init__(self, spec: CalcSpec, reg: RegisteredCalc, ctx: CalcContext,
                  fail: Callable[[str, BaseException], Exception]):
         self.spec, self.reg, self.ctx, self.fail = spec, reg, ctx, fail
+        self.speed = speed_input(reg.calc_type.inputs) or ""  # what an order multiplies
         self.cache: dict[Point, dict[str, Check]] = {}
 
     def context(self, point: Point) -> CalcContext:
@@ -94,8 +95,7 @@ class _Evaluator:
             else:
                 inputs[name] = value
         if order != 1.0:
-            speed = speed_input(self.reg.calc_type.inputs) or ""
-            inputs[speed] = inputs[speed] * order
+            inputs[self.speed] = inputs[self.speed] * order
         return dataclasses.replace(self.ctx, inputs=inputs)
 
     def output(self, point: Point) -> CalcOutput:
@@ -170,12 +170,13 @@ def where(spec: CalcSpec, point: Point, units: str, reg: RegisteredCalc | None =
     values = dict(point)
     at, with_ = [], []
     labels = dict(spec.orders)
+    speed = speed_input(reg.calc_type.inputs) if reg is not None else None
     for name, value in point:
         if name == _ORDER:
             continue
         sp = spec.spreads[name]
         pretty = name.replace("_", " ")
-        is_speed = reg is not None and name == speed_input(reg.calc_type.inputs)
+        is_speed = name == speed
         if sp.kind == "range" and (name in moved or is_speed and _ORDER in moved):
             dim = _dimension(spec, reg, name) if reg else "dimensionless"
             factor, unit = _written_unit(spec, name, dim)

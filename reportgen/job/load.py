@@ -12,7 +12,7 @@ import math
 import re
 import stat
 import tomllib
-from collections.abc import Mapping
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path, PurePosixPath
 from typing import Any
@@ -313,8 +313,7 @@ def load_job(path: Path | str, plugins: PluginSet, *, source: bytes | None = Non
     if schedule is not None:
         calcs.extend(_schedule_calcs(v, schedule, plugins, seen, len(calcs_raw)))
         attachments = _with_schedule(v, attachments, schedule)
-    attachments = v.with_data_files(attachments, calcs)
-    attachments = v.with_criteria_files(attachments, calcs, plugins)
+    attachments = v.with_data_files(attachments, calcs, plugins)
     deviations = v.deviations(pkg, {c.id for c in calcs})
     if problems:
         raise JobError(problems)
@@ -1065,79 +1064,62 @@ class _Validator:
         except JobError:
             return None
 
-    def with_data_files(self, attachments: tuple[JobAttachment, ...],
-                        calcs: list[CalcSpec]) -> tuple[JobAttachment, ...]:
-        """The attachments, and every data file the calcs name (once each), embedded like
-        them: the package carries what its calcs read."""
+    def with_data_files(self, attachments: tuple[JobAttachment, ...], calcs: list[CalcSpec],
+                        plugins: PluginSet) -> tuple[JobAttachment, ...]:
+        """The attachments, and every file the calcs read (once each), embedded like them:
+        the package carries what its calcs read, so it re-runs without their folders."""
         out = list(attachments)
         by_path = {a.path: a for a in out}
         names = {a.name: a.path for a in out}
         total = sum(len(a.data) for a in out)
-        for c in calcs:
-            for input_name, f in c.files.items():
-                if f.name in by_path:
-                    if by_path[f.name].data != f.data:
-                        self.add(f"{f.name!r} changed while the job was read", calc=c.id,
-                                 field=f"inputs.{input_name}")
-                    continue
-                base = f.name.rsplit("/", 1)[-1]
-                if base in RESERVED_NAMES or base in names:
-                    other = ("the package's own file" if base in RESERVED_NAMES
-                             else repr(names[base]))
-                    self.add(f"{f.name!r} would be embedded as '{base}', which {other}"
-                             " already uses; rename the file", calc=c.id,
-                             field=f"inputs.{input_name}")
-                    continue
-                total += f.size
-                if total > MAX_EMBEDDED_TOTAL:
-                    self.add(f"the data files and attachments total more than"
-                             f" {MAX_EMBEDDED_TOTAL} bytes, the most a package embeds",
-                             calc=c.id, field=f"inputs.{input_name}")
-                    return tuple(out)
-                a = JobAttachment(path=f.name, name=base, data=f.data)
-                out.append(a)
-                by_path[f.name] = a
-                names[base] = f.name
+        for calc, fld, path, data, differs in self._files_read(calcs, plugins):
+            if path in by_path:
+                if by_path[path].data != data:
+                    self.add(differs, calc=calc, field=fld)
+                continue
+            base = path.rsplit("/", 1)[-1]
+            if base in RESERVED_NAMES or base in names:
+                other = ("the package's own file" if base in RESERVED_NAMES
+                         else repr(names[base]))
+                self.add(f"{path!r} would be embedded as '{base}', which {other}"
+                         " already uses; rename the file", calc=calc, field=fld)
+                continue
+            total += len(data)
+            if total > MAX_EMBEDDED_TOTAL:
+                self.add(f"the data files and attachments total more than"
+                         f" {MAX_EMBEDDED_TOTAL} bytes, the most a package embeds",
+                         calc=calc, field=fld)
+                return tuple(out)
+            a = JobAttachment(path=path, name=base, data=data)
+            out.append(a)
+            by_path[path] = a
+            names[base] = path
         return tuple(out)
 
-    def with_criteria_files(self, attachments: tuple[JobAttachment, ...],
-                            calcs: list[CalcSpec], plugins: PluginSet
-                            ) -> tuple[JobAttachment, ...]:
-        """The attachments, and the firm's file of every criterion a calc names that came
-        from one (FIRM_CRITERIA_FOLDER), so that the package re-runs without the firm's
-        folder."""
-        out = list(attachments)
-        by_path = {a.path: a for a in out}
-        names = {a.name for a in out}
+    def _files_read(self, calcs: list[CalcSpec], plugins: PluginSet
+                    ) -> Iterator[tuple[str, str, str, bytes, str]]:
+        """(calc, field, path in the job folder, bytes, message if that path holds other
+        bytes) of each file a calc reads: the data files its file inputs name, and the
+        firm's file of every criterion it names that came from one, at
+        FIRM_CRITERIA_FOLDER/<file> (where an archived job finds it again)."""
         for c in calcs:
+            for input_name, f in c.files.items():
+                yield (c.id, f"inputs.{input_name}", f.name, f.data,
+                       f"{f.name!r} changed while the job was read")
             reg = plugins.calcs.get(c.plugin)
-            specs = ([("inputs", s) for s in reg.calc_type.inputs]
-                     + [("criteria", s) for s in reg.calc_type.criteria]) if reg else []
-            for table, sp in specs:
-                value = (c.inputs if table == "inputs" else c.criteria).get(sp.name)
-                if sp.kind != "criterion" or not isinstance(value, str):
-                    continue
-                found = origin_file(self.library.get(value))
-                if found is None:
-                    continue
-                name, data = found
-                rel = f"{FIRM_CRITERIA_FOLDER}/{name}"
-                if rel in by_path:
-                    if by_path[rel].data != data:
-                        self.add(f"the job folder's {rel!r} differs from the firm's criteria"
-                                 f" file of the same name that criterion {value!r} comes"
-                                 " from; rename one", calc=c.id, field=f"{table}.{sp.name}")
-                    continue
-                if name in RESERVED_NAMES or name in names:
-                    self.add(f"the firm's criteria file {name!r} would be embedded under a"
-                             " name another embedded file already uses; rename it",
-                             calc=c.id, field=f"{table}.{sp.name}")
-                    continue
-                a = JobAttachment(path=rel, name=name, data=data)
-                out.append(a)
-                by_path[rel] = a
-                names.add(name)
-        return tuple(out)
+            if reg is None:
+                continue
+            for table, values, specs in (("inputs", c.inputs, reg.calc_type.inputs),
+                                         ("criteria", c.criteria, reg.calc_type.criteria)):
+                for sp in specs:
+                    value = values.get(sp.name)
+                    found = (origin_file(self.library.get(value)) if sp.kind == "criterion"
+                             and isinstance(value, str) else None)
+                    if found is not None:
+                        rel = f"{FIRM_CRITERIA_FOLDER}/{found[0]}"
+                        yield (c.id, f"{table}.{sp.name}", rel, found[1],
+                               f"the job folder's {rel!r} differs from the firm's criteria"
+                               f" file that criterion {value!r} comes from; rename one")
 
     @staticmethod
     def _range(value: float, spec: InputSpec | Column) -> None:
